@@ -1,0 +1,81 @@
+"""Earth orientation for many instants at once, and the site's horizon frame.
+
+The IAU 2000A nutation series dominates the cost of skyfield's rotations.
+Nutation varies slowly (shortest significant period 5.6 days, amplitudes
+below 0.01 arcsec), so for long time arrays it is evaluated on knots every
+2 hours and interpolated with a cubic spline; the error is below 1e-6 arcsec.
+Everything else (precession, Earth rotation angle, Delta T) is evaluated
+exactly at every instant by skyfield.
+
+Horizon frame convention used throughout domegen ("ENU"): x east, y north,
+z up.  Azimuth is measured from north through east.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from domegen.sky.ephemeris import timescale
+
+#: Spacing of nutation knots, days.
+NUTATION_STEP_DAYS = 2.0 / 24.0
+_DIRECT_LIMIT = 64
+
+
+def fast_time(utc_s) -> "object":
+    """A skyfield ``Time`` for POSIX UTC seconds with interpolated nutation."""
+    ts = timescale()
+    s = np.atleast_1d(np.asarray(utc_s, dtype=float))
+    t = ts.utc(1970, 1, 1, 0, 0, s)
+    if s.size > _DIRECT_LIMIT:
+        _install_interpolated_nutation(t)
+    return t
+
+
+def _install_interpolated_nutation(t) -> None:
+    from scipy.interpolate import CubicSpline
+    from skyfield.nutationlib import iau2000a_radians
+
+    tt = t.tt
+    lo, hi = float(np.min(tt)), float(np.max(tt))
+    n = max(4, int(np.ceil((hi - lo) / NUTATION_STEP_DAYS)) + 3)
+    if n >= tt.size:
+        return  # no saving: leave skyfield's exact series in place
+    knots = np.linspace(lo - NUTATION_STEP_DAYS, hi + NUTATION_STEP_DAYS, n)
+    dpsi, deps = iau2000a_radians(timescale().tt_jd(knots))
+    t._nutation_angles_radians = (CubicSpline(knots, dpsi)(tt), CubicSpline(knots, deps)(tt))
+
+
+#: skyfield's altaz frame (x north, y west, z up) to ENU.
+_NWU_TO_ENU = np.array([[0.0, -1.0, 0.0], [1.0, 0.0, 0.0], [0.0, 0.0, 1.0]])
+
+
+def enu_rotation(site, t) -> np.ndarray:
+    """Rotation matrices GCRS -> site horizon (ENU), shape (3, 3, N) or (3, 3).
+
+    ``t`` is a skyfield Time (build it with :func:`fast_time` for long arrays).
+    No polar motion (below 0.5 arcsec); no refraction.
+    """
+    r = site.topos.rotation_at(t)
+    return np.einsum("ij,jk...->ik...", _NWU_TO_ENU, r)
+
+
+def equatorial_of_date_rotation(t) -> np.ndarray:
+    """Rotation GCRS -> true equator and equinox of date, shape (3, 3[, N])."""
+    return t.M
+
+
+def enu_to_altaz_deg(v) -> tuple[np.ndarray, np.ndarray]:
+    """(alt_deg, az_deg) of ENU vectors shaped (3, ...); az in [0, 360)."""
+    x, y, z = v[0], v[1], v[2]
+    alt = np.degrees(np.arctan2(z, np.hypot(x, y)))
+    az = np.degrees(np.arctan2(x, y)) % 360.0
+    return alt, az
+
+
+def altaz_to_enu(alt_deg, az_deg) -> np.ndarray:
+    """Unit ENU vectors (3, ...) for altitudes and azimuths in degrees."""
+    alt = np.radians(alt_deg)
+    az = np.radians(az_deg)
+    c = np.cos(alt)
+    return np.stack([c * np.sin(az), c * np.cos(az), np.sin(alt)])
