@@ -26,10 +26,22 @@ def fast_time(utc_s) -> "object":
     """A skyfield ``Time`` for POSIX UTC seconds with interpolated nutation."""
     ts = timescale()
     s = np.atleast_1d(np.asarray(utc_s, dtype=float))
-    t = ts.utc(1970, 1, 1, 0, 0, s)
+    t = utc_time(s)
     if s.size > _DIRECT_LIMIT:
         _install_interpolated_nutation(t)
     return t
+
+
+def utc_time(utc_s):
+    """skyfield ``Time`` for POSIX UTC seconds (scalar or array), leap seconds honoured.
+
+    The seconds are split into whole days and seconds of day so that skyfield
+    looks up TAI-UTC for each instant's own date (``ts.utc(1970, 1, 1, 0, 0, s)``
+    would apply 1970's offset to every instant).
+    """
+    s = np.asarray(utc_s, dtype=float)
+    days = np.floor(s / 86400.0)
+    return timescale().utc(1970, 1, 1 + days.astype(np.int64), 0, 0, s - days * 86400.0)
 
 
 def _install_interpolated_nutation(t) -> None:
@@ -46,8 +58,8 @@ def _install_interpolated_nutation(t) -> None:
     t._nutation_angles_radians = (CubicSpline(knots, dpsi)(tt), CubicSpline(knots, deps)(tt))
 
 
-#: skyfield's altaz frame (x north, y west, z up) to ENU.
-_NWU_TO_ENU = np.array([[0.0, -1.0, 0.0], [1.0, 0.0, 0.0], [0.0, 0.0, 1.0]])
+#: skyfield's altaz frame (x north, y east, z up; azimuth = atan2(y, x)) to ENU.
+_NEU_TO_ENU = np.array([[0.0, 1.0, 0.0], [1.0, 0.0, 0.0], [0.0, 0.0, 1.0]])
 
 
 def enu_rotation(site, t) -> np.ndarray:
@@ -57,7 +69,7 @@ def enu_rotation(site, t) -> np.ndarray:
     No polar motion (below 0.5 arcsec); no refraction.
     """
     r = site.topos.rotation_at(t)
-    return np.einsum("ij,jk...->ik...", _NWU_TO_ENU, r)
+    return np.einsum("ij,jk...->ik...", _NEU_TO_ENU, r)
 
 
 def equatorial_of_date_rotation(t) -> np.ndarray:

@@ -109,8 +109,9 @@ def to_time(utc: datetime | float | np.ndarray):
     ts = timescale()
     if isinstance(utc, datetime):
         return ts.from_datetime(utc.astimezone(timezone.utc))
-    s = np.asarray(utc, dtype=float)
-    return ts.utc(1970, 1, 1, 0, 0, s)
+    from domegen.sky.frames import utc_time
+
+    return utc_time(utc)
 
 
 def tt_datetime(t) -> datetime:

