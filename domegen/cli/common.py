@@ -34,12 +34,14 @@ def site_from_args(args) -> Site | None:
         if getattr(args, "_site_required", True):
             raise InputError("give a site: --lat and --lon, or --place NAME", field="site")
         return None
-    tz = args.tz
-    if tz is None:
+    site = Site(args.lat, args.lon, args.elev or 0.0, args.temperature, args.pressure, args.tz or "UTC")
+    if args.tz is None:
+        from dataclasses import replace
+
         from domegen.places import timezone_at
 
-        tz = timezone_at(args.lat, args.lon)
-    return Site(args.lat, args.lon, args.elev or 0.0, args.temperature, args.pressure, tz)
+        site = replace(site, timezone=timezone_at(args.lat, args.lon))
+    return site
 
 
 def print_json(obj) -> None:
