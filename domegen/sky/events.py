@@ -1,0 +1,388 @@
+"""What the sky does over a period: pairings, oppositions, elongations, Moon phases.
+
+All searches sample the whole period at once (vectorised over time and body
+pairs) and then refine every bracket together by repeated zooming on a small
+grid, as skyfield's own search routines do.  Definitions (common practice):
+
+- pairing: a local minimum of the geocentric apparent angular separation of
+  two bodies (the Moon and the five naked-eye planets), kept when below
+  ``max_separation_deg``; the topocentric separation at the site is reported too;
+- opposition: the planet's apparent geocentric ecliptic longitude differs from
+  the Sun's by 180 deg (skyfield.almanac.oppositions_conjunctions);
+- greatest elongation: a local maximum of the Sun-planet angle seen from the
+  Earth's centre (Mercury, Venus); east = evening sky, west = morning sky;
+- Moon phases: ecliptic longitude differences 0/90/180/270 deg
+  (skyfield.almanac.moon_phases).
+
+Each event carries its UTC instant, the body's refracted altitude at the site
+at that instant, the Sun's altitude, and the best moment to look within
++-12 h (the body highest while the Sun is below -6 deg), which decides
+whether the event can be seen from the site at all.
+"""
+
+from __future__ import annotations
+
+import itertools
+from dataclasses import dataclass, field
+from datetime import datetime, timedelta, timezone
+
+import numpy as np
+
+from domegen.errors import InputError
+from domegen.sky.ephemeris import body, earth, ephemeris
+from domegen.sky.site import Site
+from domegen.sky.times import check_range, from_unix_seconds, iso_local, iso_utc, to_time, unix_seconds
+
+#: Bodies whose pairings are searched (naked-eye objects).
+PAIR_BODIES = ("Moon", "Mercury", "Venus", "Mars", "Jupiter", "Saturn")
+OPPOSITION_BODIES = ("Mars", "Jupiter", "Saturn", "Uranus", "Neptune")
+ELONGATION_BODIES = ("Mercury", "Venus")
+KINDS = ("solar_eclipse", "lunar_eclipse", "pairing", "opposition", "elongation", "moon_phase")
+SKY_KINDS = ("pairing", "opposition", "elongation", "moon_phase")
+PHASE_NAMES = ("New Moon", "First Quarter", "Full Moon", "Last Quarter")
+#: Longest period searched in one call, days.
+MAX_PERIOD_DAYS = 366.0 * 10
+#: Coarse sampling step of the separation and elongation searches, s.
+COARSE_STEP_S = 6 * 3600.0
+#: The Sun must be below this altitude (deg) for a body to count as seen (civil twilight end).
+DARK_SUN_ALT_DEG = -6.0
+#: ...and the body above this altitude (deg).
+MIN_BODY_ALT_DEG = 5.0
+
+
+@dataclass(frozen=True)
+class SkyEvent:
+    """One event of the period.
+
+    ``utc`` is the instant of the event (aware, UTC); ``alt_deg`` the refracted
+    altitude of ``bodies[0]`` at the site then; ``best_utc``/``best_alt_deg`` the
+    best moment to look within +-12 h (None if never seen against a dark
+    enough sky); ``details`` holds kind-specific numbers (units in the keys).
+    """
+
+    kind: str
+    utc: datetime
+    title: str
+    bodies: tuple = ()
+    alt_deg: float | None = None
+    sun_alt_deg: float | None = None
+    separation_deg: float | None = None
+    visible: bool = True
+    best_utc: datetime | None = None
+    best_alt_deg: float | None = None
+    end_utc: datetime | None = None
+    start_utc: datetime | None = None
+    details: dict = field(default_factory=dict, compare=False, hash=False)
+
+    def local(self, tz: str) -> datetime:
+        from domegen.sky.times import zone
+
+        return self.utc.astimezone(zone(tz))
+
+    def as_json(self, tz: str | None = None) -> dict:
+        d = {"kind": self.kind, "title": self.title, "utc": iso_utc(self.utc)}
+        if tz:
+            d["local"] = iso_local(self.utc, tz)
+        d["bodies"] = list(self.bodies)
+        for key in ("alt_deg", "sun_alt_deg", "separation_deg", "best_alt_deg"):
+            v = getattr(self, key)
+            d[key] = None if v is None else round(float(v), 4)
+        d["visible"] = bool(self.visible)
+        for key in ("best_utc", "start_utc", "end_utc"):
+            v = getattr(self, key)
+            if v is not None:
+                d[key] = iso_utc(v)
+                if tz:
+                    d[key.replace("_utc", "_local")] = iso_local(v, tz)
+        d["details"] = self.details
+        return d
+
+
+# ----------------------------------------------------------------------------- positions
+def geocentric_unit(names, utc_s) -> np.ndarray:
+    """Apparent geocentric unit vectors (GCRS axes), shape (B, 3) + utc_s.shape."""
+    s = np.asarray(utc_s, dtype=float)
+    t = to_time(s.ravel())
+    e = earth().at(t)
+    out = np.empty((len(names), 3, s.size))
+    for k, name in enumerate(names):
+        v = e.observe(body(name)).apparent().position.au
+        out[k] = v / np.linalg.norm(v, axis=0)
+    return out.reshape((len(names), 3) + s.shape)
+
+
+def _angle(u, v, axis) -> np.ndarray:
+    """Angle (deg) between unit vectors stored along ``axis``; atan2 form, exact near 0."""
+    c = np.linalg.norm(np.cross(u, v, axis=axis), axis=axis)
+    d = np.sum(u * v, axis=axis)
+    return np.degrees(np.arctan2(c, d))
+
+
+def altitudes_deg(site: Site, name: str, utc_s) -> np.ndarray:
+    """Refracted apparent altitude (deg) of one body at the site, shape of utc_s."""
+    s = np.asarray(utc_s, dtype=float)
+    if s.size == 0:
+        return np.zeros(s.shape)
+    t = to_time(s.ravel())
+    alt, _, _ = site.observer().at(t).observe(body(name)).apparent().altaz(
+        temperature_C=site.temperature_C, pressure_mbar=site.pressure_mbar)
+    return np.asarray(alt.degrees, dtype=float).reshape(s.shape)
+
+
+# ----------------------------------------------------------------------------- searches
+def _zoom_minima(f, lo_s: np.ndarray, hi_s: np.ndarray, *, iterations: int = 9,
+                 points: int = 9) -> tuple[np.ndarray, np.ndarray]:
+    """Refine minima of ``f`` in all brackets [lo, hi] at once.
+
+    ``f(times (M, K)) -> values (M, K)`` is evaluated on ``points`` equally spaced
+    instants per bracket; each pass keeps the two cells around the lowest sample,
+    shrinking the bracket by (points - 1) / 2; a parabola through the last three
+    samples gives the final instant.  Returns (utc_s (M,), value (M,)).
+    """
+    lo = np.asarray(lo_s, dtype=float).copy()
+    hi = np.asarray(hi_s, dtype=float).copy()
+    m = lo.size
+    rows = np.arange(m)
+    frac = np.linspace(0.0, 1.0, points)
+    for _ in range(iterations):
+        t = lo[:, None] + (hi - lo)[:, None] * frac[None, :]
+        y = f(t)
+        j = np.clip(np.argmin(y, axis=1), 1, points - 2)
+        lo, hi = t[rows, j - 1], t[rows, j + 1]
+    t = np.stack([lo, 0.5 * (lo + hi), hi], axis=1)
+    y = f(t)
+    denom = y[:, 0] - 2 * y[:, 1] + y[:, 2]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        off = np.where(denom > 0, 0.5 * (y[:, 0] - y[:, 2]) / denom, 0.0)
+    off = np.clip(off, -1.0, 1.0)
+    best = t[:, 1] + off * 0.5 * (hi - lo)
+    return best, f(best[:, None])[:, 0]
+
+
+def _coarse_grid(start_s: float, end_s: float, step_s: float) -> np.ndarray:
+    n = max(3, int(np.ceil((end_s - start_s) / step_s)) + 1)
+    # one step of margin on each side so minima at the period's edges are bracketed
+    return np.linspace(start_s - step_s, end_s + step_s, n + 2)
+
+
+def _local_minima(y: np.ndarray) -> np.ndarray:
+    """Boolean mask of interior samples lower than (or equal to the left of) their neighbours."""
+    mask = np.zeros(y.shape, dtype=bool)
+    mask[..., 1:-1] = (y[..., 1:-1] <= y[..., :-2]) & (y[..., 1:-1] < y[..., 2:])
+    return mask
+
+
+def find_pairings(start_s: float, end_s: float, *, max_separation_deg: float = 3.0,
+                  names=PAIR_BODIES) -> list[tuple[str, str, float, float]]:
+    """Minima of geocentric separation below ``max_separation_deg``.
+
+    Returns (body_a, body_b, utc_s, separation_deg) sorted by time.
+    """
+    grid = _coarse_grid(start_s, end_s, COARSE_STEP_S)
+    u = geocentric_unit(names, grid)                       # (B, 3, N)
+    pairs = list(itertools.combinations(range(len(names)), 2))
+    ia = np.array([a for a, _ in pairs])
+    ib = np.array([b for _, b in pairs])
+    sep = _angle(u[ia], u[ib], axis=1)                      # (P, N)
+    # the Moon moves up to ~16 deg/day against a planet: a sampled minimum can sit
+    # above the true one by up to half a step of motion (hyperbola) - keep a margin
+    margin = 2.5
+    cand = _local_minima(sep) & (sep < max_separation_deg + margin)
+    p_idx, n_idx = np.nonzero(cand)
+    if p_idx.size == 0:
+        return []
+    lo, hi = grid[n_idx - 1], grid[n_idx + 1]
+    used = sorted(set(ia[p_idx]) | set(ib[p_idx]))
+    sub = [names[i] for i in used]
+    pos = {k: j for j, k in enumerate(used)}
+    ja = np.array([pos[i] for i in ia[p_idx]])
+    jb = np.array([pos[i] for i in ib[p_idx]])
+
+    def f(t):
+        v = geocentric_unit(sub, t)                         # (S, 3, M, K)
+        rows = np.arange(t.shape[0])
+        va = v[ja, :, rows, :]                              # (M, 3, K)
+        vb = v[jb, :, rows, :]
+        return _angle(va, vb, axis=1)
+
+    t_best, s_best = _zoom_minima(f, lo, hi)
+    out = []
+    for k in range(p_idx.size):
+        if s_best[k] < max_separation_deg and start_s <= t_best[k] <= end_s:
+            out.append((names[ia[p_idx[k]]], names[ib[p_idx[k]]], float(t_best[k]), float(s_best[k])))
+    out.sort(key=lambda r: r[2])
+    return out
+
+
+def find_greatest_elongations(start_s: float, end_s: float, names=ELONGATION_BODIES):
+    """(body, utc_s, elongation_deg, "east"|"west") at each local maximum of the Sun angle."""
+    grid = _coarse_grid(start_s, end_s, 2 * COARSE_STEP_S)
+    out = []
+    for name in names:
+        def neg_elong(t, name=name):
+            v = geocentric_unit(("Sun", name), t)
+            return -_angle(v[0], v[1], axis=0)
+
+        y = neg_elong(grid)
+        idx = np.nonzero(_local_minima(y))[0]
+        if idx.size == 0:
+            continue
+        t_best, v_best = _zoom_minima(neg_elong, grid[idx - 1], grid[idx + 1])
+        side = _east_or_west(name, t_best)
+        for t, v, s in zip(t_best, v_best, side):
+            if start_s <= t <= end_s:
+                out.append((name, float(t), float(-v), s))
+    out.sort(key=lambda r: r[1])
+    return out
+
+
+def _east_or_west(name: str, utc_s) -> list[str]:
+    from skyfield.framelib import ecliptic_frame
+
+    e = earth().at(to_time(np.asarray(utc_s, dtype=float)))
+    _, slon, _ = e.observe(body("Sun")).apparent().frame_latlon(ecliptic_frame)
+    _, plon, _ = e.observe(body(name)).apparent().frame_latlon(ecliptic_frame)
+    d = (np.asarray(plon.degrees) - np.asarray(slon.degrees) + 540.0) % 360.0 - 180.0
+    return ["east" if x > 0 else "west" for x in np.atleast_1d(d)]
+
+
+def find_oppositions(start_s: float, end_s: float, names=OPPOSITION_BODIES):
+    """(body, utc_s) when the planet is 180 deg from the Sun in ecliptic longitude."""
+    from skyfield import almanac
+    from skyfield.searchlib import find_discrete
+
+    t0, t1 = to_time(start_s), to_time(end_s)
+    out = []
+    for name in names:
+        f = almanac.oppositions_conjunctions(ephemeris(), body(name))
+        t, y = find_discrete(t0, t1, f)
+        for ti, yi in zip(t, y):
+            if yi == 1:
+                out.append((name, unix_seconds(ti.utc_datetime())))
+    out.sort(key=lambda r: r[1])
+    return out
+
+
+def find_moon_phases(start_s: float, end_s: float):
+    """(phase index 0..3, utc_s) for each principal phase in the period."""
+    from skyfield import almanac
+    from skyfield.searchlib import find_discrete
+
+    t, y = find_discrete(to_time(start_s), to_time(end_s), almanac.moon_phases(ephemeris()))
+    secs = unix_seconds(list(t.utc_datetime())) if len(t) else np.zeros(0)
+    return [(int(p), float(s)) for p, s in zip(y, secs)]
+
+
+# ----------------------------------------------------------------------------- assembly
+def _best_view(site: Site, names_per_event, utc_s: np.ndarray, *, half_window_s: float = 12 * 3600.0,
+               step_s: float = 600.0):
+    """Best moment to look near each event: all its bodies up, the Sun below -6 deg.
+
+    Returns (best_utc_s (E,), best_alt_deg (E,), alt_now_deg (E,), sun_now_deg (E,));
+    best values are NaN where the event is never seen in the window.
+    """
+    e = len(utc_s)
+    offs = np.arange(-half_window_s, half_window_s + step_s / 2, step_s)
+    grid = utc_s[:, None] + offs[None, :]                   # (E, K)
+    k0 = len(offs) // 2                                     # the event instant itself
+    sun = altitudes_deg(site, "Sun", grid)
+    lowest = np.full(grid.shape, np.inf)
+    first_alt = np.full(grid.shape, np.nan)
+    for name in sorted({n for names in names_per_event for n in names}):
+        rows = np.array([i for i, names in enumerate(names_per_event) if name in names])
+        alt = altitudes_deg(site, name, grid[rows])
+        lowest[rows] = np.minimum(lowest[rows], alt)
+        first = np.array([i for i in rows if names_per_event[i][0] == name], dtype=int)
+        if first.size:
+            sel = np.searchsorted(rows, first)
+            first_alt[first] = alt[sel]
+    ok = (lowest > MIN_BODY_ALT_DEG) & (sun < DARK_SUN_ALT_DEG)
+    score = np.where(ok, lowest, -np.inf)
+    j = np.argmax(score, axis=1)
+    seen = np.isfinite(score[np.arange(e), j])
+    best_t = np.where(seen, grid[np.arange(e), j], np.nan)
+    best_alt = np.where(seen, first_alt[np.arange(e), j], np.nan)
+    return best_t, best_alt, first_alt[:, k0], sun[:, k0]
+
+
+def _dt(s: float) -> datetime:
+    return from_unix_seconds(round(float(s), 3))
+
+
+def sky_events(site: Site, start_utc: datetime, end_utc: datetime, *, kinds=SKY_KINDS,
+               max_separation_deg: float = 3.0, visible_only: bool = False) -> list[SkyEvent]:
+    """Pairings, oppositions, greatest elongations and Moon phases for ``site``, by time.
+
+    ``start_utc``/``end_utc`` are aware datetimes; the period may span up to ten years.
+    """
+    unknown = set(kinds) - set(KINDS)
+    if unknown:
+        raise InputError(f"unknown event kind(s) {sorted(unknown)}", field="kinds",
+                         value=sorted(unknown), hint="choose from " + ", ".join(KINDS))
+    if not end_utc > start_utc:
+        raise InputError("the period ends before it starts", field="to", value=iso_utc(end_utc),
+                         hint="give --to after --from")
+    check_range(start_utc, field="from")
+    check_range(end_utc, field="to")
+    if (end_utc - start_utc).total_seconds() > MAX_PERIOD_DAYS * 86400.0:
+        raise InputError("the period is longer than ten years", field="to", value=iso_utc(end_utc),
+                         hint="split it into shorter periods")
+    if not 0.0 < max_separation_deg <= 20.0:
+        raise InputError(f"pairing threshold {max_separation_deg} deg is outside 0..20",
+                         field="max_separation_deg", value=max_separation_deg)
+    t0, t1 = unix_seconds(start_utc), unix_seconds(end_utc)
+    raw: list[tuple[str, float, tuple, str, float | None, dict]] = []
+    if "pairing" in kinds:
+        for a, b, t, sep in find_pairings(t0, t1, max_separation_deg=max_separation_deg):
+            raw.append(("pairing", t, (a, b), f"{a} {sep:.2f}\u00b0 from {b}", sep, {}))
+    if "opposition" in kinds:
+        for name, t in find_oppositions(t0, t1):
+            raw.append(("opposition", t, (name,), f"{name} at opposition", None, {}))
+    if "elongation" in kinds:
+        for name, t, el, side in find_greatest_elongations(t0, t1):
+            sky = "evening" if side == "east" else "morning"
+            raw.append(("elongation", t, (name,),
+                        f"{name} at greatest {side}ern elongation, {el:.1f}\u00b0 ({sky} sky)", None,
+                        {"elongation_deg": round(el, 3), "side": side, "sky": sky}))
+    if "moon_phase" in kinds:
+        for p, t in find_moon_phases(t0, t1):
+            raw.append(("moon_phase", t, ("Moon",), PHASE_NAMES[p], None, {"phase": PHASE_NAMES[p]}))
+    if not raw:
+        return []
+    times = np.array([r[1] for r in raw])
+    best_t, best_alt, alt_now, sun_now = _best_view(site, [r[2] for r in raw], times)
+    topo = _topocentric_separations(site, raw)
+    events = []
+    for k, (kind, t, names, title, sep, details) in enumerate(raw):
+        seen = bool(np.isfinite(best_t[k]))
+        if kind == "moon_phase" and PHASE_NAMES.index(details["phase"]) == 0:
+            seen = False  # a new Moon is never seen; listed for planning dark nights
+        if kind == "pairing":
+            details = dict(details, topocentric_separation_deg=round(float(topo[k]), 4))
+        ev = SkyEvent(kind=kind, utc=_dt(t), title=title, bodies=names,
+                      alt_deg=float(alt_now[k]), sun_alt_deg=float(sun_now[k]), separation_deg=sep,
+                      visible=seen, best_utc=_dt(best_t[k]) if seen else None,
+                      best_alt_deg=float(best_alt[k]) if seen else None, details=details)
+        if ev.visible or not visible_only:
+            events.append(ev)
+    events.sort(key=lambda ev: ev.utc)
+    return events
+
+
+def _topocentric_separations(site: Site, raw) -> np.ndarray:
+    """Separation (deg) of each pairing's bodies seen from the site at the event instant."""
+    out = np.full(len(raw), np.nan)
+    idx = [k for k, r in enumerate(raw) if r[0] == "pairing"]
+    if not idx:
+        return out
+    t = to_time(np.array([raw[k][1] for k in idx]))
+    obs = site.observer().at(t)
+    names = sorted({n for k in idx for n in raw[k][2]})
+    vec = {}
+    for n in names:
+        v = obs.observe(body(n)).apparent().position.au
+        vec[n] = v / np.linalg.norm(v, axis=0)
+    for j, k in enumerate(idx):
+        a, b = raw[k][2]
+        out[k] = _angle(vec[a][:, j], vec[b][:, j], axis=0)
+    return out
