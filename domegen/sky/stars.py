@@ -150,16 +150,18 @@ def parse_hip2(path=None) -> dict[str, np.ndarray]:
     cd = np.cos(dec)
     u = np.stack([cd * np.cos(ra), cd * np.sin(ra), np.sin(dec)])
     bv = f["bv"]
+    vmag = (f["hp_mag"] + v_minus_hp(bv)).astype(np.float32)
+    o = np.argsort(vmag, kind="stable")  # brightest first: a magnitude cut is a prefix
     return {
         "format": np.array(CACHE_FORMAT),
-        "hip": f["hip"].astype(np.int32),
-        "u0": u,  # ICRS unit vectors at J1991.25, (3, N)
-        "pmra_mas_yr": f["pmra_mas_yr"].astype(np.float32),
-        "pmdec_mas_yr": f["pmdec_mas_yr"].astype(np.float32),
-        "plx_mas": np.nan_to_num(f["plx_mas"], nan=0.0).astype(np.float32),
-        "hp_mag": f["hp_mag"].astype(np.float32),
-        "bv": bv.astype(np.float32),
-        "vmag": (f["hp_mag"] + v_minus_hp(bv)).astype(np.float32),
+        "hip": f["hip"].astype(np.int32)[o],
+        "u0": np.ascontiguousarray(u[:, o]),  # ICRS unit vectors at J1991.25, (3, N)
+        "pmra_mas_yr": f["pmra_mas_yr"].astype(np.float32)[o],
+        "pmdec_mas_yr": f["pmdec_mas_yr"].astype(np.float32)[o],
+        "plx_mas": np.nan_to_num(f["plx_mas"], nan=0.0).astype(np.float32)[o],
+        "hp_mag": f["hp_mag"].astype(np.float32)[o],
+        "bv": bv.astype(np.float32)[o],
+        "vmag": vmag[o],
     }
 
 
@@ -179,6 +181,8 @@ def _read_cache(path) -> dict[str, np.ndarray] | None:
         return None
     if any(d[k].shape != (n,) for k in _KEYS[3:]):
         return None
+    if not np.all(np.diff(d["vmag"]) >= 0):  # sorted brightest first, no NaN
+        return None
     norm = np.einsum("ij,ij->j", d["u0"], d["u0"])
     if not np.all(np.abs(norm - 1.0) < 1e-9):
         return None
@@ -193,12 +197,14 @@ def _write_cache(path, cols: dict[str, np.ndarray]) -> None:
 
 @dataclass(frozen=True)
 class Catalogue:
-    """Hipparcos columns, N stars; all arrays read-only.
+    """Hipparcos columns for N stars, sorted by V (brightest first); read-only.
 
     hip (N,) int; u0 (3, N) ICRS unit vectors at J1991.25; pmra_mas_yr
-    (mu_alpha cos delta) and pmdec_mas_yr (N,); plx_mas (N,), 0 where
-    unknown or not positive in use; hp_mag, bv (NaN if unknown), vmag (N,);
-    rgb (N, 3) linear sRGB of luminance 1 (white where B-V is unknown).
+    (mu_alpha cos delta) and pmdec_mas_yr (N,); plx_mas (N,), 0 where not
+    given; hp_mag, bv (NaN if unknown), vmag (N,).  Derived once at load:
+    pm_rad_yr (3, N) proper motion as a tangent vector (rad/yr), plx_rad
+    (N,) parallax (rad, negatives as 0), rgb (N, 3) linear sRGB of luminance
+    1 (white where B-V is unknown).
     """
 
     hip: np.ndarray
@@ -209,31 +215,54 @@ class Catalogue:
     hp_mag: np.ndarray
     bv: np.ndarray
     vmag: np.ndarray
+    pm_rad_yr: np.ndarray
+    plx_rad: np.ndarray
     rgb: np.ndarray
+    _hip_order: np.ndarray
 
     def __len__(self) -> int:
         return int(self.hip.shape[0])
 
+    def brighter_than(self, mag_limit: float | None) -> int:
+        """How many leading rows have V <= ``mag_limit`` (all for None)."""
+        if mag_limit is None:
+            return len(self)
+        return int(np.searchsorted(self.vmag, np.float32(mag_limit), side="right"))
+
     def index_of(self, hip) -> np.ndarray:
         """Row indices of HIP numbers (array); -1 where not in the catalogue."""
         hip = np.atleast_1d(np.asarray(hip))
-        i = np.clip(np.searchsorted(self.hip, hip), 0, len(self) - 1)
-        return np.where(self.hip[i] == hip, i, -1)
+        sorted_hip = self.hip[self._hip_order]
+        k = np.clip(np.searchsorted(sorted_hip, hip), 0, len(self) - 1)
+        return np.where(sorted_hip[k] == hip, self._hip_order[k], -1)
+
+
+def _derived(cols: dict[str, np.ndarray]) -> dict[str, np.ndarray]:
+    from domegen.sky.colour import bv_to_rgb
+
+    u0 = cols["u0"]
+    ra = np.arctan2(u0[1], u0[0])
+    sin_d, cos_d = u0[2], np.hypot(u0[0], u0[1])
+    east = np.stack([-np.sin(ra), np.cos(ra), np.zeros_like(ra)])
+    north = np.stack([-sin_d * np.cos(ra), -sin_d * np.sin(ra), cos_d])
+    pm = (east * cols["pmra_mas_yr"].astype(float) + north * cols["pmdec_mas_yr"].astype(float))
+    bv = cols["bv"].astype(float)
+    rgb = np.where(np.isfinite(bv)[:, None], bv_to_rgb(np.nan_to_num(bv, nan=0.65)), 1.0)
+    return {"pm_rad_yr": pm * _MAS_TO_RAD,
+            "plx_rad": np.maximum(cols["plx_mas"].astype(float), 0.0) * _MAS_TO_RAD,
+            "rgb": rgb,
+            "_hip_order": np.argsort(cols["hip"], kind="stable")}
 
 
 def load_catalogue(*, rebuild: bool = False) -> Catalogue:
     """Read the cached columns, (re)building the cache from hip2.dat if needed."""
-    from domegen.sky.colour import bv_to_rgb
-
     path = cache_dir() / CACHE_NAME
     cols = None if rebuild else _read_cache(path)
     if cols is None:
         cols = parse_hip2()
         _write_cache(path, cols)
-    bv = cols["bv"].astype(float)
-    rgb = np.where(np.isfinite(bv)[:, None], bv_to_rgb(np.nan_to_num(bv, nan=0.65)), 1.0)
     arrays = {k: cols[k] for k in _KEYS[1:]}
-    arrays["rgb"] = rgb.astype(np.float32)
+    arrays.update(_derived(cols))
     for a in arrays.values():
         a.setflags(write=False)
     return Catalogue(**arrays)
@@ -254,8 +283,8 @@ class StarField:
     hip (M,); alt_deg, az_deg (M,) apparent (refracted if asked; azimuth
     from north through east); enu (3, M) float64 unit vectors (x east,
     y north, z up) matching alt/az; vmag, bv (M,); rgb (M, 3) linear sRGB
-    with luminance 1.  Stars below the horizon are included; ``above_horizon``
-    selects the others.
+    with luminance 1.  Sorted by V, brightest first.  Stars below the
+    horizon are included; :meth:`above_horizon` selects the others.
     """
 
     hip: np.ndarray
@@ -298,41 +327,53 @@ def _utc_seconds(utc) -> float:
     return s
 
 
-def gcrs_directions(cat: Catalogue, index, t, observer_bary_au, observer_bary_au_d,
-                    sun_bary_au) -> np.ndarray:
-    """Apparent GCRS unit vectors (3, M) of catalogue rows ``index`` at Time ``t``.
+def apparent_gcrs(cat: Catalogue, n: int, tt_jd: float, observer_bary_au, observer_bary_au_d,
+                  sun_bary_au) -> np.ndarray:
+    """Apparent geocentric-axes directions (3, n) of the first ``n`` stars, NOT normalised.
 
-    Steps 1-4 of the module docstring; observer position (au) and velocity
-    (au/day) are barycentric, the Sun's position barycentric (au).
+    Steps 1-4 of the module docstring at TT Julian date ``tt_jd``; observer
+    position (au) and velocity (au/day) and the Sun's position (au) are
+    barycentric 3-vectors.  The vectors' lengths differ from 1 by < 1e-5;
+    that changes no direction by more than 1e-10 rad, so one normalisation
+    at the end (by the caller) is enough.
     """
-    u0 = cat.u0[:, index]
-    ra = np.arctan2(u0[1], u0[0])
-    sin_d = u0[2]
-    cos_d = np.hypot(u0[0], u0[1])
-    # Local east and north unit vectors at each star.
-    east = np.stack([-np.sin(ra), np.cos(ra), np.zeros_like(ra)])
-    north = np.stack([-sin_d * np.cos(ra), -sin_d * np.sin(ra), cos_d])
-    dt_yr = (float(np.ravel(t.tt)[0]) - EPOCH_JD_TT) / _DAYS_PER_JULIAN_YEAR
-    k = _MAS_TO_RAD * dt_yr
-    p = u0 + east * (cat.pmra_mas_yr[index] * k) + north * (cat.pmdec_mas_yr[index] * k)
-    # Annual parallax: the star at distance 1/plx (au) seen from the observer.
-    plx_rad = np.maximum(cat.plx_mas[index].astype(float), 0.0) * _MAS_TO_RAD
-    p = p / np.sqrt(np.einsum("ij,ij->j", p, p))
-    p = p - plx_rad * observer_bary_au[:, None]
-    p = p / np.sqrt(np.einsum("ij,ij->j", p, p))
-    # Light deflection by the Sun (star at infinity: q = p).
-    e_vec = observer_bary_au - sun_bary_au
+    dt_yr = (tt_jd - EPOCH_JD_TT) / _DAYS_PER_JULIAN_YEAR
+    # 1. space motion, 2. annual parallax: u0 + mu dt - plx E.
+    p = cat.pm_rad_yr[:, :n] * dt_yr
+    p += cat.u0[:, :n]
+    p -= observer_bary_au[:, None] * cat.plx_rad[:n]
+    # 3. light deflection by the Sun, star at infinity (SOFA ld with q = p).
+    e_vec = np.asarray(observer_bary_au, dtype=float) - sun_bary_au
     em = float(np.sqrt(e_vec @ e_vec))
     e = e_vec / em
     pe = e @ p
     w = _SUN_SCHWARZSCHILD_AU / em / np.maximum(1.0 + pe, 1e-9)
-    p = p + w * (e[:, None] - pe * p)
-    # Relativistic aberration by the observer's velocity.
-    beta = observer_bary_au_d / _C_AU_PER_DAY
-    inv_gamma = np.sqrt(1.0 - beta @ beta)
+    p -= p * (w * pe)
+    p += e[:, None] * w
+    # 4. aberration (SOFA ab without its tiny gravitational term).
+    beta = np.asarray(observer_bary_au_d, dtype=float) / _C_AU_PER_DAY
+    inv_gamma = float(np.sqrt(1.0 - beta @ beta))
     pb = beta @ p
-    p = p * inv_gamma + (1.0 + pb / (1.0 + inv_gamma)) * beta[:, None]
-    return p / np.sqrt(np.einsum("ij,ij->j", p, p))
+    p *= inv_gamma
+    p += beta[:, None] * (1.0 + pb / (1.0 + inv_gamma))
+    return p
+
+
+def _lift(enu: np.ndarray, d_rad: np.ndarray) -> None:
+    """Raise ENU unit vectors (3, M) in place by small altitude angles ``d_rad`` (M,).
+
+    A rotation in each star's vertical plane; sin/cos of the refraction
+    angle (< 0.02 rad) by their Taylor series, exact to 1e-13.
+    """
+    d2 = d_rad * d_rad
+    sin_d = d_rad * (1.0 - d2 * (1.0 / 6.0 - d2 / 120.0))
+    cos_d = 1.0 - d2 * (0.5 - d2 / 24.0)
+    horiz = np.sqrt(enu[0] * enu[0] + enu[1] * enu[1])
+    z = enu[2].copy()
+    f = np.where(horiz > 0.0, (horiz * cos_d - z * sin_d) / np.where(horiz > 0.0, horiz, 1.0), 0.0)
+    enu[2] = z * cos_d + horiz * sin_d
+    enu[0] *= f
+    enu[1] *= f
 
 
 def star_field(site, utc, mag_limit: float | None = 6.5, refraction: bool = True) -> StarField:
@@ -343,30 +384,27 @@ def star_field(site, utc, mag_limit: float | None = 6.5, refraction: bool = True
     Refraction uses the site's temperature and pressure.
     """
     from domegen.sky.ephemeris import ephemeris
-    from domegen.sky.frames import enu_rotation, enu_to_altaz_deg, fast_time
+    from domegen.sky.frames import enu_rotation, fast_time
 
     s = _utc_seconds(utc)
     cat = catalogue()
-    if mag_limit is None:
-        index = np.arange(len(cat))
-    else:
-        index = np.flatnonzero(cat.vmag <= float(mag_limit))
+    n = cat.brighter_than(mag_limit)
     t = fast_time(np.array([s]))
-    eph = ephemeris()
     obs = site.observer().at(t)
-    sun = eph["sun"].at(t)
-    p = gcrs_directions(cat, index, t, obs.position.au[:, 0], obs.velocity.au_per_d[:, 0],
-                        sun.position.au[:, 0])
-    rot = enu_rotation(site, t)[:, :, 0]
-    enu = rot @ p
-    alt, az = enu_to_altaz_deg(enu)
+    sun = ephemeris()["sun"].at(t)
+    p = apparent_gcrs(cat, n, float(t.tt[0]), obs.position.au[:, 0], obs.velocity.au_per_d[:, 0],
+                      sun.position.au[:, 0])
+    enu = enu_rotation(site, t)[:, :, 0] @ p
+    enu /= np.sqrt(np.einsum("ij,ij->j", enu, enu))
+    # arcsin is cheaper than arctan2 and loses at most ~3 mas next to the zenith.
+    alt = np.degrees(np.arcsin(np.clip(enu[2], -1.0, 1.0)))
+    az = np.degrees(np.arctan2(enu[0], enu[1]))
+    az[az < 0.0] += 360.0
     if refraction:
         from domegen.sky.refraction import refract
 
         alt_app = refract(alt, site.temperature_C, site.pressure_mbar)
-        horiz = np.hypot(enu[0], enu[1])
-        f = np.cos(np.radians(alt_app)) / np.where(horiz > 0, horiz, 1.0)
-        enu = np.stack([enu[0] * f, enu[1] * f, np.sin(np.radians(alt_app))])
+        _lift(enu, np.radians(alt_app - alt))
         alt = alt_app
-    return StarField(hip=cat.hip[index], alt_deg=alt, az_deg=az, enu=enu, vmag=cat.vmag[index],
-                     bv=cat.bv[index], rgb=cat.rgb[index], utc_s=s, refracted=bool(refraction))
+    return StarField(hip=cat.hip[:n], alt_deg=alt, az_deg=az, enu=enu, vmag=cat.vmag[:n],
+                     bv=cat.bv[:n], rgb=cat.rgb[:n], utc_s=s, refracted=bool(refraction))
