@@ -1,0 +1,84 @@
+"""``domegen events``: local times, CSV, JSON and the iCalendar file."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+from datetime import datetime, timezone
+from zoneinfo import ZoneInfo
+
+import icalendar
+
+from domegen.cli.main import main
+
+UTC = timezone.utc
+
+
+def test_local_times_follow_the_iana_zone_across_the_dst_change(capsys):
+    # Europe/Paris leaves CET (+01:00) for CEST (+02:00) on 2025-03-30 at 01:00 UTC
+    # (EU rule: last Sunday of March; common practice). Moon phases on both sides of it.
+    assert main(["events", "--place", "Nantes", "--from", "2025-03-15", "--to", "2025-04-15",
+                 "--kinds", "moon_phase", "--csv"]) == 0
+    rows = list(csv.DictReader(io.StringIO(capsys.readouterr().out)))
+    assert len(rows) >= 4
+    paris = ZoneInfo("Europe/Paris")
+    offsets = set()
+    for r in rows:
+        utc = datetime.fromisoformat(r["utc"].replace("Z", "+00:00"))
+        local = datetime.fromisoformat(r["local"])
+        assert local == utc  # the same instant
+        assert local.utcoffset() == utc.astimezone(paris).utcoffset()
+        offsets.add(local.isoformat()[-6:])
+        before = utc < datetime(2025, 3, 30, 1, tzinfo=UTC)
+        assert local.isoformat().endswith("+01:00" if before else "+02:00")
+    assert offsets == {"+01:00", "+02:00"}
+
+
+def test_text_output_prints_local_wall_time(capsys):
+    assert main(["events", "--place", "Nantes", "--from", "2025-03-20", "--to", "2025-04-10",
+                 "--kinds", "moon_phase"]) == 0
+    out = capsys.readouterr().out
+    # Last Quarter 2025-03-22 11:29:26 UT (USNO gives 11:29) -> 12:29 CET;
+    # First Quarter 2025-04-05 02:15 UT (USNO, from memory) -> 04:15 CEST
+    assert "2025-03-22 12:29 CET" in out
+    assert "2025-04-05 04:1" in out and "CEST" in out
+
+
+def test_ics_parses_and_holds_the_events(tmp_path, capsys):
+    ics = tmp_path / "sky.ics"
+    assert main(["events", "--place", "Nantes", "--from", "2020-12-15", "--to", "2020-12-31",
+                 "--kinds", "pairing,moon_phase", "--json", "--ics", str(ics)]) == 0
+    listed = json.loads(capsys.readouterr().out)["events"]
+    cal = icalendar.Calendar.from_ical(ics.read_bytes())
+    vevents = [c for c in cal.walk() if c.name == "VEVENT"]
+    assert len(vevents) == len(listed) >= 4
+    assert str(cal["VERSION"]) == "2.0" and cal["PRODID"]
+    uids = {str(v["UID"]) for v in vevents}
+    assert len(uids) == len(vevents)
+    by_summary = {str(v["SUMMARY"]): v for v in vevents}
+    gc = [s for s in by_summary if "Jupiter" in s and "Saturn" in s]
+    assert gc, by_summary.keys()
+    start = by_summary[gc[0]]["DTSTART"].dt
+    assert start.tzinfo is not None
+    assert start.astimezone(UTC).strftime("%Y-%m-%d %H") == "2020-12-21 18"
+    for v, ev in zip(vevents, listed):
+        assert v["DTSTART"].dt.astimezone(UTC) == datetime.fromisoformat(
+            ev["utc"].replace("Z", "+00:00"))
+        assert str(v["SUMMARY"]) == ev["title"]
+        assert v["DTSTAMP"].dt.tzinfo is not None
+    raw = ics.read_bytes()
+    assert b"\r\n" in raw and all(len(line) <= 75 for line in raw.split(b"\r\n"))
+
+
+def test_unknown_place_exits_2_with_suggestions(capsys):
+    assert main(["events", "--place", "Springfeld", "--from", "2025-01-01", "--to", "2025-01-02"]) == 2
+    err = capsys.readouterr().err
+    assert "Springfield" in err and "Traceback" not in err
+
+
+def test_bad_dates_exit_2(capsys):
+    assert main(["events", "--place", "Nantes", "--from", "2025-13-01", "--to", "2025-01-02"]) == 2
+    assert main(["events", "--place", "Nantes", "--from", "2025-02-01", "--to", "2025-01-02"]) == 2
+    err = capsys.readouterr().err
+    assert err.count("domegen: error:") == 2
