@@ -13,9 +13,12 @@ Lunar eclipses live in :mod:`domegen.eclipse.lunar`.
 from __future__ import annotations
 
 from domegen.eclipse.besselian import K_PENUMBRA, K_UMBRA, BesselianElements
+from domegen.eclipse.local import LocalCircumstances, local_circumstances
+from domegen.eclipse.path import EclipsePath, PathCurve, compute_path
 from domegen.eclipse.safety import CAUTION
 from domegen.eclipse.search import find_solar_eclipses, solar_eclipse_on
 from domegen.eclipse.solar import SolarEclipse
 
-__all__ = ["BesselianElements", "CAUTION", "K_PENUMBRA", "K_UMBRA", "SolarEclipse",
-           "find_solar_eclipses", "solar_eclipse_on"]
+__all__ = ["BesselianElements", "CAUTION", "EclipsePath", "K_PENUMBRA", "K_UMBRA", "LocalCircumstances",
+           "PathCurve", "SolarEclipse", "compute_path", "find_solar_eclipses", "local_circumstances",
+           "solar_eclipse_on"]
