@@ -1,0 +1,171 @@
+"""Base layers: land and sea, night side, graticule, terminator, site markers.
+
+Every layer is vectorised over the pixels of the projection (``Equirectangular``
+or ``Orthographic`` from domegen.maps.projection) and drawn on a
+domegen.maps.raster.Canvas.  The subsolar point comes from the DE421 ephemeris
+(apparent geocentric Sun, WGS84 sub-point, via skyfield).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from datetime import datetime
+
+import numpy as np
+
+from domegen.maps.landmask import land_fraction, land_fraction_equirect
+from domegen.maps.style import DEFAULT, Palette
+
+
+@dataclass(frozen=True)
+class MapSite:
+    """A labelled marker: geodetic lat/lon in degrees."""
+
+    name: str
+    lat_deg: float
+    lon_deg: float
+
+
+def subsolar_point(utc) -> tuple[float, float]:
+    """Geodetic (lat, lon) in degrees of the apparent Sun at ``utc`` (datetime or POSIX s)."""
+    from skyfield.api import wgs84
+
+    from domegen.sky.ephemeris import ephemeris
+    from domegen.sky.times import from_unix_seconds, to_time
+
+    if not isinstance(utc, datetime):
+        utc = from_unix_seconds(float(utc))
+    t = to_time(utc)
+    eph = ephemeris()
+    pos = eph["earth"].at(t).observe(eph["sun"]).apparent()
+    gp = wgs84.subpoint_of(pos)
+    return float(gp.latitude.degrees), float(gp.longitude.degrees)
+
+
+def sun_altitude_deg(lat_deg, lon_deg, subsolar) -> np.ndarray:
+    """Geometric altitude of the Sun's centre (deg) from its sub-point, on a sphere."""
+    la, lo = np.radians(lat_deg), np.radians(lon_deg)
+    sla, slo = np.radians(subsolar[0]), np.radians(subsolar[1])
+    c = np.sin(la) * np.sin(sla) + np.cos(la) * np.cos(sla) * np.cos(lo - slo)
+    return np.degrees(np.arcsin(np.clip(c, -1.0, 1.0)))
+
+
+def _sun_cos_zenith(proj, subsolar) -> np.ndarray:
+    """(H, W) float32 cosine of the Sun's zenith distance at each pixel (sphere)."""
+    sla, slo = np.radians(subsolar[0]), np.radians(subsolar[1])
+    if proj.kind == "equirectangular":
+        lat, lon = proj.grid()
+        la = np.radians(lat[:, :1]).astype(np.float32)
+        lo = np.radians(lon[:1, :]).astype(np.float32)
+        return (np.sin(la) * np.float32(np.sin(sla))
+                + np.cos(la) * np.float32(np.cos(sla)) * np.cos(lo - np.float32(slo)))
+    s = np.array([np.cos(sla) * np.cos(slo), np.cos(sla) * np.sin(slo), np.sin(sla)], np.float32)
+    v = proj.grid_vectors()
+    return np.nan_to_num(v.astype(np.float32) @ s)
+
+
+def land_fraction_for(proj) -> np.ndarray:
+    """(H, W) float32 land fraction for every pixel of ``proj`` (0 off a globe's disc)."""
+    if proj.kind == "equirectangular":
+        return land_fraction_equirect(proj.width_px, proj.height_px, proj.lon0_deg)
+    lat, lon = proj.grid()
+    ok = np.isfinite(lat)
+    return np.where(ok, land_fraction(np.where(ok, lat, 0.0), np.where(ok, lon, 0.0)), 0.0
+                    ).astype(np.float32)
+
+
+def surface_rgb(proj, palette: Palette = DEFAULT) -> np.ndarray:
+    """(H, W, 3) float32 land/sea colours; polar land shades to ice white."""
+    land = land_fraction_for(proj)
+    lat, _ = proj.grid()
+    if proj.kind == "equirectangular":
+        polar = np.clip((np.abs(lat[:, :1]) - 62.0) / 12.0, 0.0, 1.0).astype(np.float32)
+    else:
+        polar = np.clip((np.abs(np.nan_to_num(lat)) - 62.0) / 12.0, 0.0, 1.0).astype(np.float32)
+    sea = np.asarray(palette.sea[:3], np.float32)
+    land_lo = np.asarray(palette.land[:3], np.float32)
+    land_hi = np.asarray(palette.land_high_lat[:3], np.float32)
+    out = np.empty(land.shape + (3,), dtype=np.float32)
+    for ch in range(3):
+        lc = land_lo[ch] + (land_hi[ch] - land_lo[ch]) * polar
+        out[..., ch] = sea[ch] + (lc - sea[ch]) * land
+    return out
+
+
+def night_alpha(proj, utc) -> np.ndarray:
+    """(H, W) float32 darkening 0..1: 0 in daylight, 1 below -12 deg, smooth twilight ramp."""
+    cz = _sun_cos_zenith(proj, subsolar_point(utc))
+    # sin(alt) ~ alt for the ramp; 12 deg = 0.2079 in sine
+    r = np.clip(0.08 - cz / np.float32(0.2079), 0.0, 1.0)
+    return r * r * (3.0 - 2.0 * r)
+
+
+def draw_base(canvas, proj, utc=None, palette: Palette = DEFAULT) -> None:
+    """Land and sea, darkened on the night side when ``utc`` is given (one pass)."""
+    rgb = surface_rgb(proj, palette)
+    if utc is not None:
+        a = night_alpha(proj, utc) * np.float32(palette.night[3])
+        col = np.asarray(palette.night[:3], np.float32)
+        for ch in range(3):
+            rgb[..., ch] += (col[ch] - rgb[..., ch]) * a
+    alpha = proj.disc_coverage() if proj.kind == "orthographic" else 1.0
+    canvas.composite_image(rgb, alpha)
+
+
+def draw_graticule(canvas, proj, step_deg: float = 15.0, palette: Palette = DEFAULT) -> None:
+    lines = []
+    fine = np.linspace(-90.0, 90.0, 361)
+    for lon in np.arange(-180.0, 180.0, step_deg):
+        lines.append(proj.polyline(fine, np.full_like(fine, lon)))
+    lon_f = np.linspace(-180.0, 180.0, 721)
+    for lat in np.arange(-90.0 + step_deg, 90.0, step_deg):
+        if abs(lat) > 1e-9:
+            lines.append(proj.polyline(np.full_like(lon_f, lat), lon_f))
+    st = palette.graticule
+    canvas.stroke(lines, st.colour, st.width_px, st.dash_px)
+    eq = palette.equator
+    canvas.stroke([proj.polyline(np.zeros_like(lon_f), lon_f)], eq.colour, eq.width_px, eq.dash_px)
+
+
+def terminator_latlon(utc, n: int = 721):
+    """Lat/lon (degrees) of the great circle where the Sun's centre is on the horizon."""
+    slat, slon = np.radians(subsolar_point(utc))
+    s = np.array([np.cos(slat) * np.cos(slon), np.cos(slat) * np.sin(slon), np.sin(slat)])
+    a = np.cross(s, [0.0, 0.0, 1.0])
+    if np.linalg.norm(a) < 1e-9:
+        a = np.array([1.0, 0.0, 0.0])
+    a /= np.linalg.norm(a)
+    b = np.cross(s, a)
+    th = np.linspace(0.0, 2 * np.pi, n)
+    v = np.cos(th)[:, None] * a + np.sin(th)[:, None] * b
+    return np.degrees(np.arcsin(v[:, 2])), np.degrees(np.arctan2(v[:, 1], v[:, 0]))
+
+
+def draw_terminator(canvas, proj, utc, palette: Palette = DEFAULT) -> None:
+    lat, lon = terminator_latlon(utc)
+    st = palette.terminator
+    canvas.stroke([proj.polyline(lat, lon)], st.colour, st.width_px, st.dash_px)
+
+
+def draw_sites(canvas, proj, sites, palette: Palette = DEFAULT, label_px: int | None = None) -> None:
+    """Dots with name labels to their right, for visible sites."""
+    if not sites:
+        return
+    size = label_px or max(10, canvas.width // 90)
+    lat = np.array([s.lat_deg for s in sites])
+    lon = np.array([s.lon_deg for s in sites])
+    x, y, vis = proj.forward(lat, lon)
+    r = max(2.0, size / 4.0)
+    canvas.dots(np.c_[x, y][vis], palette.halo, r + 1.2)
+    canvas.dots(np.c_[x, y][vis], palette.site, r)
+    for s, xi, yi, v in zip(sites, x, y, vis):
+        if v:
+            canvas.label(xi + 1.8 * r, yi, s.name, palette.text, size, "lm", palette.halo)
+
+
+def draw_limb(canvas, proj, palette: Palette = DEFAULT) -> None:
+    c = 0.5 * proj.size_px
+    th = np.linspace(0, 2 * np.pi, 721)
+    st = palette.limb
+    canvas.stroke([np.c_[c + proj.radius_px * np.cos(th), c + proj.radius_px * np.sin(th)]],
+                  st.colour, st.width_px)

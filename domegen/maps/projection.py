@@ -1,0 +1,219 @@
+"""Map projections: equirectangular world map and orthographic globe.
+
+Both map geodetic latitude/longitude (degrees, east positive, WGS84) to pixel
+x, y (x right, y down; pixel centres at integer + 0.5).  The globe is drawn as
+a sphere seen from far away along a chosen direction; a point is placed by its
+geocentric direction, so shapes computed on the ellipsoid keep their place.
+"""
+
+from __future__ import annotations
+
+import functools
+from dataclasses import dataclass
+
+import numpy as np
+
+from domegen.errors import InputError, OutOfRangeError
+
+#: WGS84 flattening and first eccentricity squared.
+WGS84_F = 1.0 / 298.257223563
+WGS84_E2 = WGS84_F * (2.0 - WGS84_F)
+#: WGS84 equatorial radius, km.
+WGS84_A_KM = 6378.137
+
+
+def geodetic_to_ecef(lat_deg, lon_deg, h_km=0.0):
+    """(..., 3) ECEF position in Earth equatorial radii for geodetic lat/lon/height."""
+    lat = np.radians(lat_deg)
+    lon = np.radians(lon_deg)
+    s = np.sin(lat)
+    n = 1.0 / np.sqrt(1.0 - WGS84_E2 * s * s)
+    h = np.asarray(h_km) / WGS84_A_KM
+    return np.stack([(n + h) * np.cos(lat) * np.cos(lon), (n + h) * np.cos(lat) * np.sin(lon),
+                     (n * (1.0 - WGS84_E2) + h) * s], axis=-1)
+
+
+def direction_to_geodetic(v):
+    """Geodetic lat/lon (degrees) of the ellipsoid point in direction v (..., 3) from the centre."""
+    v = np.asarray(v, dtype=np.float64)
+    rho = np.hypot(v[..., 0], v[..., 1])
+    lat = np.degrees(np.arctan2(v[..., 2], (1.0 - WGS84_E2) * rho))
+    lon = np.degrees(np.arctan2(v[..., 1], v[..., 0]))
+    return lat, lon
+
+
+def _check_latlon(lat_deg, lon_deg, field="centre"):
+    if not (np.isfinite(lat_deg) and -90.0 <= lat_deg <= 90.0):
+        raise OutOfRangeError("latitude must be within -90..90 degrees", field=field, value=lat_deg)
+    if not np.isfinite(lon_deg):
+        raise InputError("longitude must be a finite number of degrees", field=field, value=lon_deg)
+
+
+@dataclass(frozen=True)
+class Equirectangular:
+    """Plate carree world map ``width_px`` wide, half as tall, centred on ``lon0_deg``."""
+
+    width_px: int
+    lon0_deg: float = 0.0
+
+    kind = "equirectangular"
+
+    @property
+    def height_px(self) -> int:
+        return max(1, self.width_px // 2)
+
+    def forward(self, lat_deg, lon_deg):
+        """Pixel x, y (float arrays) and a visibility mask (always True)."""
+        lat = np.asarray(lat_deg, dtype=np.float64)
+        dlon = (np.asarray(lon_deg, dtype=np.float64) - self.lon0_deg + 180.0) % 360.0 - 180.0
+        x = (dlon + 180.0) / 360.0 * self.width_px
+        y = (90.0 - lat) / 180.0 * self.height_px
+        return x, y, np.ones(np.shape(x), dtype=bool)
+
+    def grid(self):
+        """(H, W) geodetic latitude and longitude of every pixel centre, degrees."""
+        return _equirect_grid(self.width_px, self.height_px, float(self.lon0_deg))
+
+    def polyline(self, lat_deg, lon_deg) -> np.ndarray:
+        """(N', 2) pixel polyline with NaN rows where the line wraps across the map edge."""
+        x, y, _ = self.forward(lat_deg, lon_deg)
+        return _break_jumps(np.c_[x, y], 0.5 * self.width_px)
+
+    def polygon_rings(self, lat_deg, lon_deg) -> list[np.ndarray]:
+        """Rings to fill for a closed lat/lon ring, unwrapped and repeated across the seam."""
+        lon = np.degrees(np.unwrap(np.radians(np.asarray(lon_deg, dtype=np.float64) - self.lon0_deg)))
+        x = (lon + 180.0) / 360.0 * self.width_px
+        x = x - np.floor(np.nanmin(x) / self.width_px) * self.width_px
+        y = (90.0 - np.asarray(lat_deg, dtype=np.float64)) / 180.0 * self.height_px
+        return [np.c_[x + k * self.width_px, y] for k in (-1, 0, 1)]
+
+
+@functools.lru_cache(maxsize=4)
+def _equirect_grid(w: int, h: int, lon0: float):
+    lon = lon0 - 180.0 + (np.arange(w) + 0.5) * 360.0 / w
+    lon = (lon + 180.0) % 360.0 - 180.0
+    lat = 90.0 - (np.arange(h) + 0.5) * 180.0 / h
+    lat2, lon2 = np.broadcast_arrays(lat[:, None], lon[None, :])
+    return lat2, lon2
+
+
+def _break_jumps(p: np.ndarray, limit: float) -> np.ndarray:
+    if len(p) < 2:
+        return p
+    jump = np.abs(np.diff(p[:, 0])) > limit
+    if not jump.any():
+        return p
+    idx = np.flatnonzero(jump) + 1
+    return np.insert(p, idx, np.nan, axis=0)
+
+
+@dataclass(frozen=True)
+class Orthographic:
+    """Globe of diameter ``disc_frac`` x size seen from above (lat0, lon0), north up."""
+
+    size_px: int
+    lat0_deg: float = 0.0
+    lon0_deg: float = 0.0
+    disc_frac: float = 0.94
+
+    kind = "orthographic"
+
+    def __post_init__(self):
+        _check_latlon(self.lat0_deg, self.lon0_deg)
+
+    @property
+    def width_px(self) -> int:
+        return self.size_px
+
+    @property
+    def height_px(self) -> int:
+        return self.size_px
+
+    @property
+    def radius_px(self) -> float:
+        return 0.5 * self.disc_frac * self.size_px
+
+    def basis(self) -> np.ndarray:
+        """(3, 3) rows: screen-right, screen-up, toward-viewer unit vectors in ECEF."""
+        return _ortho_basis(float(self.lat0_deg), float(self.lon0_deg))
+
+    def forward_vec(self, v):
+        """Pixel x, y and visibility for ECEF directions v (..., 3)."""
+        v = np.asarray(v, dtype=np.float64)
+        v = v / np.linalg.norm(v, axis=-1, keepdims=True)
+        e, n, u = np.moveaxis(v @ self.basis().T, -1, 0)
+        c = 0.5 * self.size_px
+        return c + self.radius_px * e, c - self.radius_px * n, u >= 0.0
+
+    def forward(self, lat_deg, lon_deg):
+        return self.forward_vec(geodetic_to_ecef(lat_deg, lon_deg))
+
+    def grid_vectors(self):
+        """(H, W, 3) ECEF unit direction of each pixel centre (NaN off the disc)."""
+        return _ortho_grid(self.size_px, float(self.lat0_deg), float(self.lon0_deg),
+                           float(self.disc_frac))
+
+    def grid(self):
+        """(H, W) geodetic latitude and longitude of each pixel, NaN off the disc."""
+        return _ortho_latlon(self.size_px, float(self.lat0_deg), float(self.lon0_deg),
+                             float(self.disc_frac))
+
+    def polyline(self, lat_deg, lon_deg) -> np.ndarray:
+        x, y, vis = self.forward(lat_deg, lon_deg)
+        p = np.c_[x, y]
+        p[~vis] = np.nan
+        return p
+
+    def polygon_rings(self, lat_deg, lon_deg) -> list[np.ndarray]:
+        """One ring; points on the far side are pushed to the limb (a fair clip for bands)."""
+        v = geodetic_to_ecef(lat_deg, lon_deg)
+        v = v / np.linalg.norm(v, axis=-1, keepdims=True)
+        e, n, u = np.moveaxis(v @ self.basis().T, -1, 0)
+        if (u < 0).all():
+            return []
+        back = u < 0
+        r = np.hypot(e, n)
+        e = np.where(back, e / np.maximum(r, 1e-12), e)
+        n = np.where(back, n / np.maximum(r, 1e-12), n)
+        c = 0.5 * self.size_px
+        return [np.c_[c + self.radius_px * e, c - self.radius_px * n]]
+
+    def disc_coverage(self) -> np.ndarray:
+        """(H, W) anti-aliased coverage of the globe disc."""
+        c = 0.5 * self.size_px
+        yy, xx = np.mgrid[0:self.size_px, 0:self.size_px].astype(np.float32) + 0.5
+        d = np.hypot(xx - c, yy - c)
+        return np.clip(self.radius_px + 0.5 - d, 0.0, 1.0).astype(np.float32)
+
+
+@functools.lru_cache(maxsize=8)
+def _ortho_basis(lat0, lon0):
+    la, lo = np.radians(lat0), np.radians(lon0)
+    u = np.array([np.cos(la) * np.cos(lo), np.cos(la) * np.sin(lo), np.sin(la)])
+    e = np.array([-np.sin(lo), np.cos(lo), 0.0])
+    n = np.cross(u, e)
+    return np.stack([e, n, u])
+
+
+@functools.lru_cache(maxsize=4)
+def _ortho_grid(size, lat0, lon0, frac):
+    c = 0.5 * size
+    r = 0.5 * frac * size
+    s = (np.arange(size) + 0.5 - c) / r
+    e = s[None, :]
+    n = -s[:, None]
+    rr = e * e + n * n
+    u = np.sqrt(np.where(rr <= 1.0, 1.0 - rr, np.nan))
+    e, n = np.broadcast_arrays(e, n)
+    b = _ortho_basis(lat0, lon0)
+    v = np.stack([e, n, u], axis=-1) @ b
+    v.setflags(write=False)
+    return v
+
+
+@functools.lru_cache(maxsize=4)
+def _ortho_latlon(size, lat0, lon0, frac):
+    lat, lon = direction_to_geodetic(_ortho_grid(size, lat0, lon0, frac))
+    lat.setflags(write=False)
+    lon.setflags(write=False)
+    return lat, lon
