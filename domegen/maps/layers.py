@@ -111,7 +111,7 @@ def draw_central_line(canvas, proj, path, palette: Palette = DEFAULT, tick_s: fl
                 for xi, yi, a, b, v in zip(x, y, nx, ny, vis) if v]
         canvas.stroke(segs, palette.tick.colour, palette.tick.width_px)
         for n, (tk, xi, yi, a, b, v) in enumerate(zip(ticks, x, y, nx, ny, vis)):
-            if v and n % label_every == 0:
+            if v and label_every > 0 and n % label_every == 0:
                 hhmm = datetime.fromtimestamp(float(tk), timezone.utc).strftime("%H:%M")
                 off = 2.2 * half + label_px
                 canvas.label(xi + off * a, yi + off * b, hhmm, palette.text, label_px, "mm",

@@ -121,7 +121,7 @@ def _globe_canvas(eclipse, proj, utc_s, overlay_only, sites, with_shadow, path, 
     if path is not None:
         layers.draw_path_band(canvas, proj, path, palette)
         layers.draw_limits(canvas, proj, path, palette)
-        layers.draw_central_line(canvas, proj, path, palette, label_every=10 ** 6)
+        layers.draw_central_line(canvas, proj, path, palette, label_every=0)
     if with_shadow:
         layers.draw_shadow(canvas, proj, eclipse, utc_s, palette, points=_globe_points(proj))
     if not overlay_only:
