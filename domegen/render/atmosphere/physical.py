@@ -1,0 +1,88 @@
+"""PhysicalSky: the SkyModel the renderer uses for day, twilight, moonlight and night."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..sky_model import SkyLight
+from . import night, spectrum
+from .extinction import transmittance_rgb, v_extinction
+from .medium import Atmosphere
+from .scatter import SUN_ALT_GRID, marched_xyz, scattered_xyz, site_table
+
+#: Site heights are rounded to this step (m) to share one table per venue.
+HEIGHT_STEP_M = 100.0
+
+
+def _gamut_clip(rgb: np.ndarray) -> np.ndarray:
+    """Bring negative linear sRGB components to 0 at constant luminance (desaturate)."""
+    y = rgb @ spectrum.RGB_LUMA
+    lo = rgb.min(axis=1)
+    need = lo < 0.0
+    if np.any(need):
+        yy = np.maximum(y[need], 0.0)[:, None]
+        c = rgb[need]
+        s = yy / np.maximum(yy - c.min(axis=1, keepdims=True), 1e-30)
+        rgb[need] = yy + (c - yy) * s
+    return np.maximum(rgb, 0.0)
+
+
+@dataclass(frozen=True)
+class PhysicalSky:
+    """Clear-sky radiance from single + multiple scattering, moonlight, night glow and light pollution.
+
+    atmosphere: optical parameters (see Atmosphere); natural_zenith_mag_arcsec2: the natural
+    moonless zenith V brightness; march_steps: samples per ray when an eclipse shadow is given.
+    """
+
+    atmosphere: Atmosphere = field(default_factory=Atmosphere)
+    natural_zenith_mag_arcsec2: float = night.NATURAL_ZENITH_MAG_ARCSEC2
+    march_steps: int = 16
+
+    def _height(self, light: SkyLight) -> float:
+        return float(np.round(max(light.site_elev_m, 0.0) / HEIGHT_STEP_M) * HEIGHT_STEP_M)
+
+    def scattered_xyz(self, dirs_enu: np.ndarray, light: SkyLight) -> np.ndarray:
+        """Scattered sunlight + moonlight, CIE XYZ (M, 3) cd/m^2."""
+        dirs = np.asarray(dirs_enu, np.float32)
+        h = self._height(light)
+        xyz = np.zeros((dirs.shape[1], 3), np.float32)
+        if light.sun_alt_deg > SUN_ALT_GRID[0] and light.sun_visible_fraction > 0.0:
+            if light.shadow is None:
+                xyz += scattered_xyz(site_table(self.atmosphere, h), dirs, light.sun_enu) * np.float32(
+                    light.sun_visible_fraction)
+            else:
+                xyz += marched_xyz(self.atmosphere, h, dirs, light.sun_enu, light.shadow, self.march_steps)
+        if light.moon_enu is not None and light.moon_alt_deg > SUN_ALT_GRID[0] and light.moon_illuminance_lux > 0:
+            scale = np.float32(light.moon_illuminance_lux / spectrum.SOLAR_ILLUMINANCE_LUX)
+            xyz += scattered_xyz(site_table(self.atmosphere, h), dirs, light.moon_enu) * scale
+        return xyz
+
+    def night_rgb(self, dirs_enu: np.ndarray, light: SkyLight) -> np.ndarray:
+        """Natural night glow + artificial sky glow, linear sRGB (M, 3) cd/m^2."""
+        alt = np.degrees(np.arcsin(np.clip(np.asarray(dirs_enu)[2], -1.0, 1.0)))
+        k_v = v_extinction(self.atmosphere, light.site_elev_m)
+        lum = night.natural_luminance(alt, k_v, self.natural_zenith_mag_arcsec2)
+        rgb = lum[:, None] * night.NATURAL_RGB
+        if light.light_pollution_mag_arcsec2 is not None:
+            art = night.artificial_luminance(alt, light.light_pollution_mag_arcsec2)
+            rgb = rgb + art[:, None] * night.ARTIFICIAL_RGB
+        return rgb
+
+    def radiance(self, dirs_enu: np.ndarray, light: SkyLight) -> np.ndarray:
+        """Sky radiance for view directions (3, M) -> (M, 3) float32 linear sRGB, cd/m^2."""
+        xyz = self.scattered_xyz(dirs_enu, light)
+        rgb = xyz.astype(np.float64) @ spectrum.XYZ_TO_SRGB.T
+        rgb = _gamut_clip(rgb) + self.night_rgb(dirs_enu, light)
+        return rgb.astype(np.float32)
+
+    def transmittance(self, alt_deg: np.ndarray, light: SkyLight) -> np.ndarray:
+        """Point-source transmittance per RGB channel (..., 3), Kasten & Young air mass."""
+        return transmittance_rgb(self.atmosphere, alt_deg, light.site_elev_m)
+
+    def zenith_luminance(self, light: SkyLight) -> float:
+        """Luminance of the zenith sky, cd/m^2."""
+        rgb = self.radiance(np.array([[0.0], [0.0], [1.0]], np.float32), light)
+        return float(rgb[0] @ spectrum.RGB_LUMA)
