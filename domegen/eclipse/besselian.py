@@ -58,25 +58,34 @@ def _nutation_per_group(t, group_size: int) -> None:
     t._nutation_angles_radians = (np.repeat(dpsi, group_size), np.repeat(deps, group_size))
 
 
-def raw_elements(tt_jd, *, group_size: int | None = None) -> dict[str, np.ndarray]:
+def raw_elements(tt_jd, *, group_size: int | None = None, rough: bool = False) -> dict[str, np.ndarray]:
     """Unfitted Besselian elements at TT Julian dates ``tt_jd`` (any shape).
 
     Returns arrays of the same shape: x, y, z (Earth radii), d (deg), mu (deg,
     ephemeris meridian, 0..360), a (deg, right ascension of the axis), l1, l2,
     tan_f1, tan_f2, delta_t_s.  ``group_size`` > 1 shares one nutation
     evaluation between that many consecutive samples (fast for searches).
+    ``rough`` skips nutation, aberration and light deflection (errors of a few
+    1e-5 Earth radii in x, y): enough to locate conjunctions.
     """
     tt = np.asarray(tt_jd, dtype=float)
     shape = tt.shape
     flat = tt.ravel()
     ts = timescale()
     t = ts.tt_jd(flat)
-    if group_size and group_size > 1 and flat.size % group_size == 0:
+    if rough:
+        zero = np.zeros(flat.shape)
+        t._nutation_angles_radians = (zero, zero)
+    elif group_size and group_size > 1 and flat.size % group_size == 0:
         _nutation_per_group(t, group_size)
     eph = ephemeris()
     earth = eph["earth"].at(t)
-    sun = earth.observe(eph["sun"]).apparent().position.au
-    moon = earth.observe(eph["moon"]).apparent().position.au
+    if rough:
+        sun = earth.observe(eph["sun"]).position.au
+        moon = earth.observe(eph["moon"]).position.au
+    else:
+        sun = earth.observe(eph["sun"]).apparent().position.au
+        moon = earth.observe(eph["moon"]).apparent().position.au
     rot = t.M  # GCRS -> true equator and equinox of date
     if rot.ndim == 2:
         rot = rot[:, :, None]

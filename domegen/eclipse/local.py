@@ -36,7 +36,8 @@ class LocalCircumstances:
 
     ``type_here``: "total", "annular", "partial" or "none" (no eclipse, or the
     Sun below the horizon for all of it).  ``magnitude`` (fraction of the
-    Sun's diameter covered) and ``obscuration`` (fraction of its area) at
+    Sun's diameter covered; inside the umbra or antumbra the ratio of the
+    apparent diameters Moon/Sun) and ``obscuration`` (fraction of its area) at
     maximum; ``duration_s`` of totality/annularity (0 if none);
     ``sun_alt_deg[c]``, ``sun_az_deg[c]``, ``above_horizon[c]`` and
     ``position_angle_deg[c]`` per contact name in CONTACTS.
@@ -70,14 +71,14 @@ class LocalCircumstances:
         from domegen.sky.times import iso_local, iso_utc
 
         tz = timezone_name or "UTC"
+        none = self.type_here[i] == "none"
         out = {"kind": "solar", "eclipse": self.eclipse.date.isoformat(),
                "eclipse_type": self.eclipse.type, "type_here": str(self.type_here[i])}
         for c in CONTACTS:
-            out[f"{c}_utc"] = iso_utc(self.utc(c, i))
+            out[f"{c}_utc"] = None if none else iso_utc(self.utc(c, i))
         for c in CONTACTS:
-            out[f"{c}_local"] = iso_local(self.utc(c, i), tz)
+            out[f"{c}_local"] = None if none else iso_local(self.utc(c, i), tz)
         out["timezone"] = tz
-        none = self.type_here[i] == "none"
         out["magnitude"] = None if none else round(float(self.magnitude[i]), 4)
         out["obscuration"] = None if none else round(float(self.obscuration[i]), 4)
         out["duration_s"] = round(float(self.duration_s[i]), 1)
@@ -86,7 +87,7 @@ class LocalCircumstances:
         out["sun_alt_deg_at_max"] = None if none or not np.isfinite(alt) else round(float(alt), 1)
         out["sun_az_deg_at_max"] = None if none or not np.isfinite(az) else round(float(az), 1)
         out["contacts"] = {
-            c: None if not np.isfinite(self.utc_s[c][i]) else {
+            c: None if none or not np.isfinite(self.utc_s[c][i]) else {
                 "sun_alt_deg": round(float(self.sun_alt_deg[c][i]), 1),
                 "sun_az_deg": round(float(self.sun_az_deg[c][i]), 1),
                 "above_horizon": bool(self.above_horizon[c][i]),
@@ -165,8 +166,9 @@ def local_circumstances(eclipse: SolarEclipse, sites, *, delta_t_s: float | None
     t_max = t
     m = np.hypot(u, v)
     eclipsed = m < l1p
-    magnitude = np.where(eclipsed, (l1p - m) / (l1p + l2p), 0.0)
     central = eclipsed & (m < np.abs(l2p))
+    # Inside the umbra/antumbra the magnitude is the Moon/Sun diameter ratio (NASA bulletin convention).
+    magnitude = np.where(central, (l1p - l2p) / (l1p + l2p), np.where(eclipsed, (l1p - m) / (l1p + l2p), 0.0))
     obscuration = np.where(eclipsed, _obscuration(m, l1p, l2p), 0.0)
 
     def contact(radius_fn, sign, mask):

@@ -12,7 +12,6 @@
 
 from __future__ import annotations
 
-import functools
 from datetime import datetime, timedelta, timezone
 
 import numpy as np
@@ -40,10 +39,10 @@ def _conjunctions(start_jd: float, end_jd: float) -> tuple[np.ndarray, np.ndarra
     t = _NEW_MOON_EPOCH_JDE + _SYNODIC_D * k
     probe = np.array([0.0, 1.0 / 24.0])
     for _ in range(4):
-        r = raw_elements(t[:, None] + probe[None, :], group_size=2)
+        r = raw_elements(t[:, None] + probe[None, :], rough=True)
         dx = (r["x"][:, 1] - r["x"][:, 0]) * 24.0  # per day
         t = t - r["x"][:, 0] / dx
-    r = raw_elements(t[:, None] + probe[None, :], group_size=2)
+    r = raw_elements(t[:, None] + probe[None, :], rough=True)
     x, y = r["x"][:, 0], r["y"][:, 0]
     vx, vy = r["x"][:, 1] - x, r["y"][:, 1] - y
     least = np.abs(vx * y - vy * x) / np.hypot(vx, vy)
@@ -76,16 +75,31 @@ def _search_tt(start_jd: float, end_jd: float) -> list[SolarEclipse]:
     return found
 
 
-@functools.lru_cache(maxsize=8)
-def _cached(start_jd: float, end_jd: float) -> tuple[SolarEclipse, ...]:
-    return tuple(_search_tt(start_jd, end_jd))
+_BLOCK_YEARS = 10
+
+
+_BLOCKS: dict[int, tuple[SolarEclipse, ...]] = {}
+
+
+def _fill_blocks(first_years: list[int]) -> None:
+    """Search the span of the missing decades in one go and cache each decade's eclipses."""
+    missing = sorted(y for y in first_years if y not in _BLOCKS)
+    if not missing:
+        return
+    lo = datetime(missing[0], 1, 1, tzinfo=timezone.utc)
+    hi = datetime(missing[-1] + _BLOCK_YEARS, 1, 1, tzinfo=timezone.utc)
+    found = _search_tt(_jd(max(lo, EPHEMERIS_START_UTC)) - 1.0, _jd(min(hi, EPHEMERIS_END_UTC)) + 1.0)
+    for year in missing:
+        a = datetime(year, 1, 1, tzinfo=timezone.utc)
+        b = datetime(year + _BLOCK_YEARS, 1, 1, tzinfo=timezone.utc)
+        _BLOCKS[year] = tuple(e for e in found if a <= e.greatest_utc < b)
 
 
 def find_solar_eclipses(start_utc: datetime, end_utc: datetime) -> list[SolarEclipse]:
     """Every solar eclipse whose greatest eclipse falls in [start_utc, end_utc], in time order.
 
     Both instants must be aware datetimes inside 1900-01-01 .. 2050-12-31 UTC
-    (:class:`OutOfRangeError` otherwise).  Results are cached per range.
+    (:class:`OutOfRangeError` otherwise).  Results are cached per decade.
     """
     for name, dt in (("from", start_utc), ("to", end_utc)):
         if not isinstance(dt, datetime) or dt.tzinfo is None:
@@ -94,11 +108,13 @@ def find_solar_eclipses(start_utc: datetime, end_utc: datetime) -> list[SolarEcl
     if end_utc < start_utc:
         raise InputError("the end of the range is before its start", field="to", value=end_utc.isoformat(),
                          hint="swap --from and --to")
-    # Search whole days (padded) so that cached ranges are reused; filter exactly afterwards.
-    lo = np.floor(_jd(start_utc) - 0.5) + 0.5 - 1.0
-    hi = np.ceil(_jd(end_utc) - 0.5) + 0.5 + 1.0
-    found = _cached(float(lo), float(hi))
-    return [e for e in found if start_utc <= e.greatest_utc <= end_utc]
+    first = start_utc.year - start_utc.year % _BLOCK_YEARS
+    years = list(range(first, end_utc.year + 1, _BLOCK_YEARS))
+    _fill_blocks(years)
+    out: list[SolarEclipse] = []
+    for year in years:
+        out.extend(e for e in _BLOCKS[year] if start_utc <= e.greatest_utc <= end_utc)
+    return out
 
 
 def solar_eclipse_on(day) -> SolarEclipse:
@@ -110,8 +126,8 @@ def solar_eclipse_on(day) -> SolarEclipse:
 
     d = parse_date(day, field="eclipse")
     start = datetime(d.year, d.month, d.day, tzinfo=timezone.utc)
-    lo = max(start - timedelta(days=400), EPHEMERIS_START_UTC)
-    hi = min(start + timedelta(days=401), EPHEMERIS_END_UTC)
+    lo = max(start - timedelta(days=200), EPHEMERIS_START_UTC)
+    hi = min(start + timedelta(days=201), EPHEMERIS_END_UTC)
     near = find_solar_eclipses(lo, hi)
     for e in near:
         if e.date == d:
@@ -124,7 +140,7 @@ def solar_eclipse_on(day) -> SolarEclipse:
     if after:
         options.append(f"{after[0].date.isoformat()} ({after[0].type})")
     raise NotFoundError(f"no solar eclipse on {d.isoformat()}", field="eclipse", value=d.isoformat(),
-                        hint="nearest: " + " and ".join(options) if options else None)
+                        hint="nearest solar eclipses: " + " and ".join(options) if options else None)
 
 
 __all__ = ["find_solar_eclipses", "solar_eclipse_on"]

@@ -220,15 +220,22 @@ def central_span_h(b: BesselianElements, tg: float, step_h: float = 0.005):
     lo, hi = idx[0], idx[-1]
 
     def root(i_out, i_in):
-        a, c = t[i_out], t[i_in]
-        for _ in range(40):
-            mid = 0.5 * (a + c)
-            em = b.at(mid)
-            if em["x"] ** 2 + (em["y"] / geo.limb_rho(em["d"])) ** 2 < 1.0:
-                c = mid
-            else:
-                a = mid
-        return float(c)
+        # Secant steps on g(t) = x^2 + (y / rho)^2 - 1 from the bracketing samples.
+        a, c = float(t[i_out]), float(t[i_in])
+
+        def g(tt):
+            em = b.at(tt)
+            return float(em["x"] ** 2 + (em["y"] / geo.limb_rho(em["d"])) ** 2 - 1.0)
+
+        ga, gc = g(a), g(c)
+        for _ in range(6):
+            if gc == ga:
+                break
+            a, ga, c = c, gc, c - gc * (c - a) / (gc - ga)
+            gc = g(c)
+            if abs(c - a) < 1e-9:
+                break
+        return c
 
     start = root(lo - 1, lo) if lo > 0 else float(t[0])
     end = root(hi + 1, hi) if hi + 1 < t.size else float(t[-1])
