@@ -165,7 +165,8 @@ OUTPUT = Section("where and how frames are written", example={"folder": "renders
                          default="frame_{frame:05d}.png", pattern=r"[^{}]*\{frame(?::0?\d+d)?\}[^{}]*",
                          pattern_help="include {frame} or {frame:05d} exactly once"),
     "format": Choice("image format", example="png", default="png", choices=("png", "jpeg", "exr")),
-    "bit_depth": Choice("bits per colour channel", example=8, default=8, choices=(8, 16, 32)),
+    "bit_depth": Choice("bits per colour channel (PNG 8 or 16; JPEG 8; EXR is always half float)", example=8,
+                        default=8, choices=(8, 16)),
     "frame_rate": Number("frames per second of show time", example=30, default=30.0, minimum=1, maximum=240,
                          unit="fps"),
 })

@@ -1,0 +1,78 @@
+"""What a worker does with one frame: render, encode, write atomically, hash.
+
+Workers get self-contained :class:`FrameJob` items (no scene, no state), so
+the same function runs in this process, in a spawned local process, or on a
+Dask worker, and gives the same bytes.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import importlib
+import signal
+import time
+from dataclasses import dataclass
+from pathlib import Path
+
+from domegen.cache import atomic_write_bytes
+
+DEFAULT_PRODUCER = "domegen.farm.worker:render_and_encode"
+
+
+@dataclass(frozen=True)
+class FrameJob:
+    frame: int
+    spec: object            # domegen.render.spec.FrameSpec
+    path: str               # absolute output path
+    file: str               # path relative to the output root (for the manifest)
+    fmt: str
+    bit_depth: int
+    params: str
+    producer: str = DEFAULT_PRODUCER
+
+
+@dataclass(frozen=True)
+class FrameResult:
+    frame: int
+    file: str
+    params: str
+    sha256: str
+    bytes: int
+    render_s: float         # time spent producing the image bytes
+    total_s: float          # time for the whole job inside the worker
+
+
+def render_and_encode(spec, fmt: str, bit_depth: int) -> bytes:
+    """The standard producer: render the frame and encode it."""
+    from domegen.render.frame import render_frame
+    from domegen.render.output import encode_frame
+
+    return encode_frame(render_frame(spec), fmt, bit_depth, spec.layers.exposure_ev)
+
+
+def _producer(name: str):
+    mod, _, fn = name.partition(":")
+    return getattr(importlib.import_module(mod), fn)
+
+
+def run_job(job: FrameJob) -> FrameResult:
+    """Produce one frame, write it under a temporary name, rename, and hash the bytes."""
+    t0 = time.perf_counter()
+    data = _producer(job.producer)(job.spec, job.fmt, job.bit_depth)
+    t1 = time.perf_counter()
+    path = Path(job.path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    atomic_write_bytes(path, data)
+    digest = hashlib.sha256(data).hexdigest()
+    return FrameResult(job.frame, job.file, job.params, digest, len(data), t1 - t0,
+                       time.perf_counter() - t0)
+
+
+def run_chunk(jobs: list) -> list:
+    """Several jobs in order (the unit of work sent to a Dask worker)."""
+    return [run_job(j) for j in jobs]
+
+
+def ignore_sigint() -> None:
+    """Local pool initializer: the coordinator alone handles Ctrl-C and stops the workers."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
