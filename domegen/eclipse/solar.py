@@ -185,6 +185,7 @@ def circumstances(b: BesselianElements) -> SolarEclipse | None:
         n = float(np.hypot(e["dx"] - dxi, e["dy"] - deta))
         duration = 7200.0 * abs(l2p) / n
         width = path_width_km(b, tg)
+        width = width if np.isfinite(width) else None  # a limit misses the Earth (grazing path)
         kind = _central_type(b, tg)
     else:
         m, xi, eta = geo.nearest_limb(x, y, d)
