@@ -1,35 +1,251 @@
-"""Render one dome-master frame: linear light, composited layer by layer."""
+"""Render one dome-master frame: linear light, composited layer by layer.
+
+Order: the sky background (coarse grid, bilinear upsampling) fills the
+buffer; stars, Sun and planet points are added; planet disks and the Moon
+are composited over what lies behind them (the Moon hides the Sun in a
+solar eclipse) with the sky light kept in front; eclipse paint hooks; the
+opaque ground; overlays and labels; finally the image-circle coverage.
+Optional eclipse hooks: see ``_hooks`` and /work notes of the renderer.
+"""
 
 from __future__ import annotations
 
+import functools
+import importlib
+import math
+import os
 from dataclasses import dataclass, field
 
 import numpy as np
 
+from domegen.errors import OutOfRangeError
+from domegen.render import camera as cam
+from domegen.render.context import RenderContext
+from domegen.render.sky_gradient import mag_arcsec2_to_cd_m2, sky_model_named
+from domegen.render.sky_model import SkyLight
 from domegen.render.spec import FrameSpec
+from domegen.render.tonemap import auto_exposure_ev
+
+#: Bortle class -> zenith brightness mag/arcsec^2 (mid-points of the usual SQM ranges; classes 4-9 approximate).
+BORTLE_MAG_ARCSEC2 = {1: 21.85, 2: 21.6, 3: 21.4, 4: 20.85, 5: 19.75, 6: 18.55, 7: 18.2, 8: 17.8, 9: 17.3}
+#: The user's cap on a frame's working memory, GiB (default: 80 % of the memory available).
+MEMORY_ENV = "DOMEGEN_MAX_MEMORY_GB"
+_HOOK_MODULES = ("domegen.render.eclipse_solar", "domegen.render.eclipse_lunar")
 
 
 @dataclass
 class RenderedFrame:
     """A finished frame in linear light.
 
-    ``rgba``: (H, W, 4) float32; RGB linear sRGB in cd/m^2 (overlays are
-    stored pre-scaled so that they display at their intended brightness at
-    ``info["exposure_ev"]``); alpha 1 inside the image circle, 0 outside,
-    anti-aliased at the rim.  ``info``: JSON-ready facts, among them
-    ``"bodies"`` (list of dicts name, alt_deg, az_deg, x_px, y_px for every
-    Sun, Moon or planet inside the frame) and ``"exposure_ev"``.
+    ``rgb``: (3, H, W) float32 planes, linear sRGB in cd/m^2, premultiplied by
+    the image-circle coverage (black outside); ``alpha``: (H, W) float32
+    coverage (1 inside, 0 outside, anti-aliased rim); ``rgba``: the same as
+    one (H, W, 4) float32 array (built on first use).  Overlays are stored
+    scaled so that they display at their intended brightness at
+    ``info["exposure_ev"]``.  ``info``: JSON-ready facts, among them
+    ``"bodies"`` (name, alt_deg, az_deg, x_px, y_px for each Sun, Moon or
+    planet inside the frame, apparent positions as drawn).
     """
 
-    rgba: np.ndarray
+    rgb: np.ndarray
+    alpha: np.ndarray
     info: dict = field(default_factory=dict)
 
+    @functools.cached_property
+    def rgba(self) -> np.ndarray:
+        _, h, w = self.rgb.shape
+        out = np.empty((h, w, 4), dtype=np.float32)
+        for k in range(3):
+            out[..., k] = self.rgb[k]
+        out[..., 3] = self.alpha
+        return out
 
-def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None) -> RenderedFrame:
-    """Render ``spec``.
+
+def _available_bytes() -> float:
+    cap = os.environ.get(MEMORY_ENV)
+    if cap:
+        try:
+            return float(cap) * 2 ** 30
+        except ValueError:
+            pass
+    try:
+        with open("/proc/meminfo") as f:
+            for line in f:
+                if line.startswith("MemAvailable:"):
+                    return 0.8 * int(line.split()[1]) * 1024
+    except OSError:
+        pass
+    return 8 * 2 ** 30
+
+
+def check_memory(camera) -> None:
+    """OutOfRangeError when the frame's buffers would not fit in memory."""
+    need = cam.memory_estimate_bytes(camera)
+    have = _available_bytes()
+    if need > have:
+        raise OutOfRangeError(f"a {camera.size_px} px frame needs about {need / 2 ** 30:.1f} GiB, "
+                              f"more than the {have / 2 ** 30:.1f} GiB available", field="size_px",
+                              value=camera.size_px, hint=f"use a smaller size or raise {MEMORY_ENV}")
+
+
+def _hooks(name: str):
+    found = []
+    for mod_name in _HOOK_MODULES:
+        try:
+            mod = importlib.import_module(mod_name)
+        except ImportError:
+            continue
+        fn = getattr(mod, name, None)
+        if fn is not None:
+            found.append(fn)
+    return found
+
+
+def light_pollution_mag(layers) -> float | None:
+    if layers.light_pollution_mag_arcsec2 is not None:
+        return float(layers.light_pollution_mag_arcsec2)
+    if layers.light_pollution_bortle is not None:
+        return BORTLE_MAG_ARCSEC2[layers.light_pollution_bortle]
+    return None
+
+
+def sky_light(spec: FrameSpec, bodies) -> SkyLight:
+    """The SkyLight of the frame's instant from a BodyTable (N = 1)."""
+    from domegen.render.layer_bodies import lux_from_v
+
+    s, m = bodies.index("Sun"), bodies.index("Moon")
+    return SkyLight(
+        sun_enu=np.asarray(bodies.enu[s, :, 0], dtype=float), sun_alt_deg=float(bodies.alt_deg[s, 0]),
+        moon_enu=np.asarray(bodies.enu[m, :, 0], dtype=float), moon_alt_deg=float(bodies.alt_deg[m, 0]),
+        moon_illuminance_lux=float(lux_from_v(bodies.magnitude[m, 0])), site_elev_m=spec.site.elev_m,
+        light_pollution_mag_arcsec2=light_pollution_mag(spec.layers))
+
+
+def coarse_size(size_px: int) -> int:
+    return int(min(512, max(32, size_px // 16)))
+
+
+def coarse_sky(camera, sky_model, light) -> tuple[np.ndarray, np.ndarray]:
+    """Sky radiance on a coarse grid: (3, m, m) float32 and the coarse directions (3, m, m)."""
+    n = camera.size_px
+    m = coarse_size(n)
+    pos = (np.arange(m) + 0.5) * (n / m)
+    xx, yy = np.meshgrid(pos, pos)
+    d = cam.unproject(camera, xx, yy)
+    lift = math.sin(math.radians(0.5))
+    dz = np.maximum(d[2], lift)
+    horiz = np.sqrt(np.maximum(1.0 - dz * dz, 0.0)) / np.maximum(np.hypot(d[0], d[1]), 1e-12)
+    dc = np.stack([d[0] * horiz, d[1] * horiz, dz])
+    rad = np.asarray(sky_model.radiance(dc.reshape(3, -1).astype(np.float32), light), dtype=np.float32)
+    return np.ascontiguousarray(rad.T.reshape(3, m, m)), d
+
+
+def _lerp_index(n: int, m: int):
+    t = (np.arange(n) + 0.5) / (n / m) - 0.5
+    i0 = np.clip(np.floor(t).astype(np.int64), 0, m - 2)
+    w = np.clip(t - i0, 0.0, 1.0).astype(np.float32)
+    return i0, w
+
+
+def upsample_into(planes: np.ndarray, coarse: np.ndarray) -> None:
+    """planes (3, n, n) = bilinear upsampling of coarse (3, m, m) (sample centres aligned).
+
+    Rows are filled one coarse cell at a time (rows between two coarse rows
+    share their pair): two passes per pixel, no gathers.
+    """
+    _, n, _ = planes.shape
+    m = coarse.shape[1]
+    ix, wx = _lerp_index(n, m)
+    iy, wy = _lerp_index(n, m)
+    starts = np.searchsorted(iy, np.arange(m - 1), side="left")
+    ends = np.searchsorted(iy, np.arange(m - 1), side="right")
+    for k in range(3):
+        tmp = coarse[k][:, ix] * (1 - wx) + coarse[k][:, ix + 1] * wx         # (m, n)
+        diff = tmp[1:] - tmp[:-1]
+        for i in range(m - 1):  # coarse rows, not pixels
+            r0, r1 = int(starts[i]), int(ends[i])
+            if r0 == r1:
+                continue
+            block = planes[k, r0:r1]
+            np.multiply(wy[r0:r1, None], diff[i][None, :], out=block)
+            block += tmp[i][None, :]
+
+
+def sky_window(coarse: np.ndarray, n: int, box) -> np.ndarray:
+    """(h, w, 3) upsampled sky radiance of one pixel window (the same values as upsample_into)."""
+    y0, y1, x0, x1 = box
+    m = coarse.shape[1]
+    ix, wx = _lerp_index(n, m)
+    iy, wy = _lerp_index(n, m)
+    ix, wx, iy, wy = ix[x0:x1], wx[x0:x1], iy[y0:y1, None], wy[y0:y1, None]
+    out = np.empty((y1 - y0, x1 - x0, 3), dtype=np.float32)
+    for k in range(3):
+        c = coarse[k]
+        top = c[iy, ix] * (1 - wx) + c[iy, ix + 1] * wx
+        bot = c[iy + 1, ix] * (1 - wx) + c[iy + 1, ix + 1] * wx
+        out[..., k] = top + (bot - top) * wy
+    return out
+
+
+def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, out=None) -> RenderedFrame:
+    """Render ``spec`` into linear light.
 
     Optional precomputed inputs for sequences: ``bodies`` (a BodyTable for
-    this instant), ``stars`` (a StarField), ``sky_model`` (any SkyModel,
-    overriding ``spec.layers.sky_model``).
+    this instant, N = 1), ``stars`` (a StarField), ``sky_model`` (any SkyModel,
+    overriding ``spec.layers.sky_model``), ``out`` (a (3, H, W) float32 array
+    to render into, e.g. the ``rgb`` of a frame already written: saves the
+    page faults of a fresh 200 MB buffer at 4K).
     """
-    raise NotImplementedError("renderer under construction")
+    from domegen.render import layer_bodies, layer_ground, layer_overlays, layer_stars
+    from domegen.sky.times import unix_seconds
+
+    camera, layers = spec.camera, spec.layers
+    check_memory(camera)
+    if bodies is None:
+        from domegen.sky.bodies import body_positions
+
+        bodies = body_positions(spec.site, np.array([unix_seconds(spec.utc)]))
+    if stars is None and layers.stars > 0:
+        from domegen.sky.stars import star_field
+
+        stars = star_field(spec.site, spec.utc, mag_limit=layers.star_mag_limit)
+    model = sky_model if sky_model is not None else sky_model_named(layers.sky_model)
+    light = sky_light(spec, bodies)
+    for hook in _hooks("eclipse_light"):
+        light = hook(spec, light, bodies)
+
+    sky, sky_dirs = coarse_sky(camera, model, light)
+    sky *= np.float32(layers.atmosphere * layers.sky_dimming)
+    ev = layers.exposure_ev
+    if ev is None:
+        lum = 0.2126 * sky[0] + 0.7152 * sky[1] + 0.0722 * sky[2]
+        up = sky_dirs[2] > 0.05
+        ref = float(np.median(lum[up])) if up.any() else float(lum.mean())
+        if layers.atmosphere * layers.sky_dimming <= 0:
+            ref = float(mag_arcsec2_to_cd_m2(22.0))
+        ev = auto_exposure_ev(ref)
+    n = camera.size_px
+    if out is None or out.shape != (3, n, n) or out.dtype != np.float32:
+        out = np.empty((3, n, n), dtype=np.float32)
+    if layers.atmosphere * layers.sky_dimming > 0:
+        upsample_into(out, sky)
+    else:
+        out[...] = 0.0
+        sky[...] = 0.0
+    ctx = RenderContext(spec=spec, rgb=out, bodies=bodies, stars=stars, sky_coarse=sky,
+                        sky_model=model, light=light, exposure_ev=float(ev),
+                        info={"exposure_ev": round(float(ev), 4), "bodies": [],
+                              "sky_model": getattr(model, "name", type(model).__name__)})
+    layer_stars.draw_stars(ctx, layers.stars)
+    layer_bodies.draw_sun(ctx, layers.sun)
+    layer_bodies.draw_planets(ctx, layers.planets)
+    layer_bodies.draw_moon(ctx, layers.moon)
+    for hook in _hooks("paint"):
+        hook(ctx)
+    layer_ground.draw_ground(ctx, layers.ground)
+    layer_overlays.draw_overlays(ctx)
+    alpha = cam.circle_alpha(n)
+    for k in range(3):
+        ctx.rgb[k] *= alpha
+    ctx.info["bodies"] = [b for b in ctx.info["bodies"]]
+    return RenderedFrame(rgb=ctx.rgb, alpha=alpha, info=ctx.info)

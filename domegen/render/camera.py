@@ -1,0 +1,165 @@
+"""The angular (equidistant) fisheye: pixels <-> horizon-frame directions.
+
+Camera frame: right (r), down (d) and axis (a) unit vectors in ENU, a
+right-handed triple (r x d = a).  A direction v at angle theta from the axis
+lands at distance theta / (field/2) * (size/2) pixels from the centre, in the
+direction (v.r, v.d) on the frame (x right, y down).  For the default dome
+(zenith at the centre, front azimuth 180) r = west, d = south: north at the
+top and east on the left, as seen from below looking up.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+
+import numpy as np
+
+from domegen.render.spec import CameraSpec
+
+_CHUNK_ROWS = 512
+
+
+def _horizontal(az_deg: float) -> np.ndarray:
+    a = math.radians(az_deg)
+    return np.array([math.sin(a), math.cos(a), 0.0])
+
+
+@functools.lru_cache(maxsize=64)
+def camera_basis(camera: CameraSpec) -> np.ndarray:
+    """Rows (right, down, axis) of the camera in ENU, shape (3, 3) float64."""
+    up = np.array([0.0, 0.0, 1.0])
+    if camera.free_view:
+        az = camera.front_az_deg if camera.view_az_deg is None else camera.view_az_deg
+        alt = math.radians(camera.view_alt_deg)
+        f = _horizontal(az)
+        axis = math.cos(alt) * f + math.sin(alt) * up
+        # zenith side up in the picture; looking straight up, the front is down
+        down = math.sin(alt) * f - math.cos(alt) * up
+        if abs(camera.view_alt_deg) > 89.999999:
+            down = _horizontal(camera.front_az_deg) * math.copysign(1.0, camera.view_alt_deg)
+    else:
+        t = math.radians(camera.tilt_deg)
+        f = _horizontal(camera.front_az_deg)
+        axis = math.cos(t) * up + math.sin(t) * f
+        down = math.cos(t) * f - math.sin(t) * up
+    down = down - axis * float(down @ axis)
+    down /= np.linalg.norm(down)
+    right = np.cross(down, axis)
+    rho = math.radians(camera.roll_deg)
+    if rho:
+        right, down = (math.cos(rho) * right + math.sin(rho) * down,
+                       -math.sin(rho) * right + math.cos(rho) * down)
+    m = np.stack([right, down, axis])
+    m.flags.writeable = False
+    return m
+
+
+def half_field_rad(camera: CameraSpec) -> float:
+    return math.radians(camera.field_deg) / 2.0
+
+
+def rad_per_px(camera: CameraSpec) -> float:
+    """Angle per pixel along a radius, radians."""
+    return math.radians(camera.field_deg) / camera.size_px
+
+
+def project(camera: CameraSpec, enu) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """ENU vectors (3, ...) -> (x_px, y_px, theta_rad), float64.
+
+    theta is the angle from the camera axis; a point is in the image circle
+    when theta <= field/2.  Vectors need not be normalised.
+    """
+    v = np.asarray(enu, dtype=float)
+    m = camera_basis(camera)
+    c = np.tensordot(m, v, axes=(1, 0))
+    h = np.hypot(c[0], c[1])
+    theta = np.arctan2(h, c[2])
+    scale = (camera.size_px / 2.0) / half_field_rad(camera)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        k = np.where(h > 0, theta * scale / np.where(h > 0, h, 1.0), 0.0)
+    half = camera.size_px / 2.0
+    return half + k * c[0], half + k * c[1], theta
+
+
+def unproject(camera: CameraSpec, x_px, y_px) -> np.ndarray:
+    """Frame coordinates -> unit ENU vectors (3, ...), float64 (any radius)."""
+    half = camera.size_px / 2.0
+    x = (np.asarray(x_px, dtype=float) - half) / half
+    y = (np.asarray(y_px, dtype=float) - half) / half
+    r = np.hypot(x, y)
+    theta = r * half_field_rad(camera)
+    s = np.sinc(theta / np.pi) * half_field_rad(camera)  # sin(theta)/r without 0/0
+    cam = np.stack([s * x, s * y, np.cos(theta)])
+    return np.tensordot(camera_basis(camera).T, cam, axes=(1, 0))
+
+
+@functools.lru_cache(maxsize=2)
+def direction_grid(camera: CameraSpec) -> np.ndarray:
+    """Unit ENU direction of every pixel centre, (H, W, 3) float32, read-only, cached per camera.
+
+    Pixels outside the image circle carry the continued mapping (angles past
+    field/2), so smooth fields can be sampled up to the rim without seams.
+    """
+    n = camera.size_px
+    half = n / 2.0
+    u = ((np.arange(n, dtype=np.float64) + 0.5 - half) / half).astype(np.float32)
+    m = camera_basis(camera).astype(np.float32)
+    hf = np.float32(half_field_rad(camera))
+    out = np.empty((n, n, 3), dtype=np.float32)
+    for r0 in range(0, n, _CHUNK_ROWS):
+        y = u[r0:r0 + _CHUNK_ROWS, None]
+        r = np.sqrt(u[None, :] ** 2 + y ** 2)  # never 0: pixel centres are off the exact centre
+        theta = r * hf
+        s = np.sin(theta)
+        s /= r
+        cx, cy, cz = s * u[None, :], s * y, np.cos(theta)
+        blk = out[r0:r0 + _CHUNK_ROWS]
+        for k in range(3):
+            blk[..., k] = m[0, k] * cx + m[1, k] * cy + m[2, k] * cz
+    out.flags.writeable = False
+    return out
+
+
+@functools.lru_cache(maxsize=4)
+def radius_grid(size_px: int) -> np.ndarray:
+    """Distance of each pixel centre from the frame centre in units of the circle radius, (H, W) float32."""
+    half = size_px / 2.0
+    u = ((np.arange(size_px, dtype=np.float64) + 0.5 - half) / half).astype(np.float32)
+    r = np.sqrt(u[None, :] ** 2 + u[:, None] ** 2)
+    r.flags.writeable = False
+    return r
+
+
+@functools.lru_cache(maxsize=4)
+def circle_alpha(size_px: int) -> np.ndarray:
+    """Coverage of each pixel by the image circle, (H, W) float32: 1 inside, 0 outside, AA rim."""
+    half = size_px / 2.0
+    a = np.clip((1.0 - radius_grid(size_px)) * np.float32(half) + np.float32(0.5), 0.0, 1.0)
+    a = a.astype(np.float32)
+    a.flags.writeable = False
+    return a
+
+
+def pixel_solid_angle(camera: CameraSpec, theta_rad) -> np.ndarray:
+    """Solid angle of one pixel at angle theta from the axis, sr: dtheta^2 sin(theta)/theta."""
+    d = rad_per_px(camera)
+    return d * d * np.sinc(np.asarray(theta_rad, dtype=float) / np.pi)
+
+
+def local_basis(center_enu) -> tuple[np.ndarray, np.ndarray]:
+    """Two unit vectors (east-like, north-like) perpendicular to ``center_enu`` (3,)."""
+    c = np.asarray(center_enu, dtype=float)
+    c = c / np.linalg.norm(c)
+    ref = np.array([0.0, 0.0, 1.0]) if abs(c[2]) < 0.999 else np.array([0.0, 1.0, 0.0])
+    e1 = np.cross(ref, c)
+    e1 /= np.linalg.norm(e1)
+    e2 = np.cross(c, e1)
+    return e1, e2
+
+
+def memory_estimate_bytes(camera: CameraSpec) -> int:
+    """Rough peak memory of rendering and writing one frame with this camera."""
+    n2 = camera.size_px ** 2
+    # direction grid 12, RGBA float32 16, display copy 12, 8/16-bit output 8, temporaries ~12
+    return n2 * 60

@@ -1,0 +1,171 @@
+"""The opaque ground: a seeded procedural skyline or the user's equirectangular panorama.
+
+Lighting: the ground is a diffuse reflector under the sky's horizontal
+illuminance E = integral of L cos z over the sky (sampled from the sky model)
+plus the direct Sun and Moon (times their transmittance): L = rho E / pi.
+
+Panorama convention: a 360 x 180 degree equirectangular PNG, width = 2 x
+height; column 0 at azimuth 0 (north), azimuth increasing to the right
+(through east); top row at altitude +90; alpha 0 = sky shows through.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+import os
+
+import numpy as np
+
+from domegen.errors import InputError
+from domegen.render.tonemap import srgb_decode
+
+GROUND_ALBEDO = np.array([0.16, 0.14, 0.11])
+SKYLINE_ALBEDO = np.array([0.07, 0.09, 0.06])
+SKYLINE_MAX_DEG = 4.0
+_TABLE = 8192
+
+
+@functools.lru_cache(maxsize=16)
+def skyline_table(seed: int) -> np.ndarray:
+    """Skyline altitude (deg) at _TABLE azimuths 0..360 (periodic): rolling hills and tree tops."""
+    rng = np.random.default_rng([seed, 2718])
+    az = np.arange(_TABLE) * (2 * np.pi / _TABLE)
+    h = np.zeros(_TABLE)
+    f = np.arange(1, 49)
+    amp = rng.normal(size=f.size) / f ** 1.1
+    ph = rng.uniform(0, 2 * np.pi, f.size)
+    h += (amp[:, None] * np.cos(f[:, None] * az[None] + ph[:, None])).sum(axis=0)
+    h = (h - h.min()) / max(np.ptp(h), 1e-9) * 1.6 + 0.25
+    ft = np.arange(60, 420, 3)
+    trees = (rng.normal(size=ft.size)[:, None] / np.sqrt(ft)[:, None]
+             * np.cos(ft[:, None] * az[None] + rng.uniform(0, 2 * np.pi, ft.size)[:, None])).sum(axis=0)
+    woods = np.clip(np.cos(3 * az + rng.uniform(0, 6.3)) + np.cos(7 * az + rng.uniform(0, 6.3)), 0, None)
+    h += np.clip(trees * 3.0, 0.0, None) * woods
+    return np.clip(h, 0.1, SKYLINE_MAX_DEG - 0.2)
+
+
+@functools.lru_cache(maxsize=4)
+def _load_panorama(path: str, mtime: float) -> tuple[np.ndarray, float]:
+    from PIL import Image, UnidentifiedImageError
+
+    try:
+        img = Image.open(path)
+        img.load()
+    except FileNotFoundError:
+        raise InputError(f"panorama file {path!r} not found", field="panorama", value=path) from None
+    except (UnidentifiedImageError, OSError) as err:
+        raise InputError(f"cannot read panorama {path!r}: {err}", field="panorama", value=path) from None
+    w, h = img.size
+    if w != 2 * h:
+        raise InputError(f"panorama {path!r} is {w}x{h}, not equirectangular (width = 2 x height)",
+                         field="panorama", value=path, hint="export a 360x180 degree panorama, e.g. 4096x2048")
+    a = np.asarray(img.convert("RGBA"), dtype=np.float32) / 255.0
+    rgb = srgb_decode(a[..., :3]).astype(np.float32)
+    data = np.concatenate([rgb, a[..., 3:]], axis=-1)
+    rows = np.flatnonzero(a[..., 3].max(axis=1) > 0)
+    top_alt = 90.0 - 180.0 * rows.min() / h if rows.size else -90.0
+    data.flags.writeable = False
+    return data, float(top_alt)
+
+
+def load_panorama(path: str) -> tuple[np.ndarray, float]:
+    """(H, 2H, 4) float32 linear RGB + alpha and the highest altitude with any opaque pixel."""
+    try:
+        mtime = os.path.getmtime(path)
+    except OSError:
+        raise InputError(f"panorama file {path!r} not found", field="panorama", value=path) from None
+    return _load_panorama(path, mtime)
+
+
+@functools.lru_cache(maxsize=4)
+def ground_geometry(camera, limit_deg: float):
+    """Flat indices, altitudes and azimuths (deg) of the pixels inside the image circle below ``limit_deg``."""
+    from domegen.render.camera import direction_grid, radius_grid
+
+    grid = direction_grid(camera)
+    n = camera.size_px
+    inside = radius_grid(n) <= np.float32(1.0 + 2.0 / n)
+    low = grid[..., 2] < np.float32(math.sin(math.radians(limit_deg)))
+    sel = np.flatnonzero(low & inside)
+    d = grid.reshape(-1, 3)[sel]
+    alt = np.degrees(np.arcsin(np.clip(d[:, 2], -1.0, 1.0)))
+    az = np.degrees(np.arctan2(d[:, 0], d[:, 1])) % 360.0
+    for a in (sel, alt, az):
+        a.flags.writeable = False
+    return sel, alt, az
+
+
+def horizontal_illuminance(ctx) -> float:
+    """Horizontal illuminance at the site from sky, Sun and Moon, lux (luminance)."""
+    i = np.arange(256) + 0.5
+    z = i / 256.0
+    phi = i * math.pi * (3.0 - math.sqrt(5.0))
+    r = np.sqrt(1 - z * z)
+    dirs = np.stack([r * np.cos(phi), r * np.sin(phi), z]).astype(np.float32)
+    lum = np.asarray(ctx.sky_model.radiance(dirs, ctx.light), dtype=float) @ np.array([0.2126, 0.7152, 0.0722])
+    layers = ctx.layers
+    e = 2 * math.pi * float(np.mean(lum * z)) * layers.atmosphere * layers.sky_dimming
+    from domegen.render.layer_bodies import lux_from_v
+
+    b = ctx.bodies
+    for name in ("Sun", "Moon"):
+        k = b.index(name)
+        alt = float(b.alt_refracted_deg[k, 0])
+        if alt > 0:
+            t = np.asarray(ctx.sky_model.transmittance(np.array(alt), ctx.light)).reshape(3)
+            vis = ctx.light.sun_visible_fraction if name == "Sun" else 1.0
+            e += float(lux_from_v(b.magnitude[k, 0])) * math.sin(math.radians(alt)) * float(t[1]) * vis
+    return e
+
+
+def draw_ground(ctx, opacity: float) -> None:
+    if opacity <= 0:
+        return
+    pano = None
+    if ctx.layers.panorama:
+        pano, top = load_panorama(ctx.layers.panorama)
+        limit_deg = top + ctx.deg_per_px
+    else:
+        limit_deg = SKYLINE_MAX_DEG
+    sel, alt, az = ground_geometry(ctx.camera, round(min(limit_deg, 90.0), 3))
+    if sel.size == 0:
+        return
+    e = horizontal_illuminance(ctx)
+    if pano is None:
+        table = skyline_table(ctx.layers.seed)
+        t = az / 360.0 * _TABLE
+        i0 = np.floor(t).astype(np.int64) % _TABLE
+        w = t - np.floor(t)
+        sky_h = table[i0] * (1 - w) + table[(i0 + 1) % _TABLE] * w
+        cov = np.clip((sky_h - alt) / ctx.deg_per_px + 0.5, 0.0, 1.0)
+        flat = np.clip(-alt / ctx.deg_per_px + 0.5, 0.0, 1.0)
+        albedo = SKYLINE_ALBEDO[None] + (GROUND_ALBEDO - SKYLINE_ALBEDO)[None] * flat[:, None]
+        rad = albedo * (e / math.pi)
+    else:
+        rgba = _sample(pano, az, alt)
+        cov = rgba[:, 3]
+        rad = rgba[:, :3] * (e / math.pi)
+    cov = cov * opacity
+    keep = cov > 0
+    idx, cov, rad = sel[keep], cov[keep], rad[keep]
+    for k in range(3):
+        plane = ctx.rgb[k].reshape(-1)
+        plane[idx] = plane[idx] * (1.0 - cov) + rad[:, k] * cov
+    ctx.info["ground_lux"] = round(e, 6)
+
+
+def _sample(pano: np.ndarray, az: np.ndarray, alt: np.ndarray) -> np.ndarray:
+    """Bilinear samples (M, 4) of the panorama at azimuths/altitudes (deg), wrapping in azimuth."""
+    h, w, _ = pano.shape
+    u = az / 360.0 * w - 0.5
+    v = np.clip((90.0 - alt) / 180.0 * h - 0.5, 0.0, h - 1.0)
+    u0 = np.floor(u).astype(np.int64)
+    v0 = np.minimum(np.floor(v).astype(np.int64), h - 2) if h > 1 else np.zeros(v.shape, np.int64)
+    fu, fv = (u - u0)[:, None], (v - v0)[:, None]
+    u0 %= w
+    u1 = (u0 + 1) % w
+    v1 = np.minimum(v0 + 1, h - 1)
+    top = pano[v0, u0] * (1 - fu) + pano[v0, u1] * fu
+    bot = pano[v1, u0] * (1 - fu) + pano[v1, u1] * fu
+    return top * (1 - fv) + bot * fv

@@ -1,0 +1,166 @@
+"""Guide lines, cardinal points and labels, in our own palette.
+
+Each line is drawn from the exact angular distance of every pixel's
+direction to the line (so widths are constant in degrees on the dome),
+converted to pixels and anti-aliased by a one-pixel ramp; widths never drop
+below 2 px at 4096 px (1.5 px on small frames).  Colours are display
+values: they are stored divided by the frame's exposure so they show at the
+intended brightness whatever the sky.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from domegen.render.text import draw_text, upright_angle
+from domegen.render.tonemap import srgb_decode
+
+#: Our palette (sRGB display values 0..1).
+PALETTE = {
+    "grid_altaz": (0.30, 0.78, 0.70),      # sea green
+    "grid_equatorial": (0.62, 0.52, 0.92),  # lavender
+    "ecliptic": (0.98, 0.72, 0.26),         # amber
+    "equator": (0.42, 0.64, 0.98),          # cornflower
+    "meridian": (0.93, 0.47, 0.58),         # coral rose
+    "horizon_line": (0.62, 0.90, 0.42),     # spring green
+    "cardinals": (0.99, 0.93, 0.80),        # warm ivory
+    "labels": (0.96, 0.86, 0.62),           # sand
+}
+#: Line widths on the dome, degrees.
+WIDTH_DEG = {"grid_altaz": 0.10, "grid_equatorial": 0.10, "ecliptic": 0.16, "equator": 0.14,
+             "meridian": 0.14, "horizon_line": 0.16}
+CARDINAL_SIZE_DEG = 3.0
+LABEL_SIZE_DEG = 1.5
+GRID_ALT_STEP_DEG = 10.0
+GRID_AZ_STEP_DEG = 15.0
+GRID_RA_STEP_H = 1.0
+#: Mean obliquity of the ecliptic at J2000 (IAU 2006: 84381.406 arcsec); its drift is < 0.02 deg by 2050.
+OBLIQUITY_DEG = 84381.406 / 3600.0
+#: Proper names of the brightest stars by Hipparcos number (IAU WGSN names).
+STAR_NAMES = {32349: "Sirius", 30438: "Canopus", 69673: "Arcturus", 91262: "Vega", 24608: "Capella",
+              24436: "Rigel", 37279: "Procyon", 27989: "Betelgeuse", 7588: "Achernar", 68702: "Hadar",
+              97649: "Altair", 60718: "Acrux", 21421: "Aldebaran", 80763: "Antares", 65474: "Spica",
+              37826: "Pollux", 113368: "Fomalhaut", 102098: "Deneb", 62434: "Mimosa", 49669: "Regulus",
+              11767: "Polaris", 36850: "Castor", 25336: "Bellatrix", 54061: "Dubhe", 62956: "Alioth"}
+LABEL_MAG_LIMIT = 2.1
+
+
+def _width_px(ctx, name: str) -> float:
+    n = ctx.size
+    w = WIDTH_DEG[name] / ctx.deg_per_px
+    return float(np.clip(w, max(1.5, 2.0 * n / 4096.0), max(4.0, 8.0 * n / 4096.0)))
+
+
+def _colour(ctx, name: str, gain: float = 0.85) -> np.ndarray:
+    return srgb_decode(np.array(PALETTE[name])) * ctx.display_to_linear(gain)
+
+
+def _composite_line(ctx, dist_deg: np.ndarray, name: str, opacity: float) -> None:
+    half = _width_px(ctx, name) / 2.0
+    cov = np.clip(half + 0.5 - dist_deg / np.float32(ctx.deg_per_px), 0.0, 1.0) * np.float32(opacity)
+    col = _colour(ctx, name)
+    for k in range(3):
+        p = ctx.rgb[k]
+        p *= 1.0 - cov
+        p += cov * np.float32(col[k])
+
+
+def _nearest(v: np.ndarray, step: float) -> np.ndarray:
+    return np.abs(v - step * np.round(v / step))
+
+
+def _eq_rotation(ctx) -> np.ndarray:
+    from domegen.sky.bodies import equatorial_to_enu
+    from domegen.sky.times import unix_seconds
+
+    return equatorial_to_enu(ctx.spec.site, np.array([unix_seconds(ctx.spec.utc)]))[:, :, 0]
+
+
+def draw_overlays(ctx) -> None:
+    """Every overlay layer with a non-zero opacity."""
+    op = ctx.layers.opacities()
+    lines = [k for k in WIDTH_DEG if op[k] > 0]
+    if lines:
+        g = ctx.grid
+        z = g[..., 2]
+        alt = np.degrees(np.arcsin(np.clip(z, -1.0, 1.0)))
+        if op["horizon_line"] > 0:
+            _composite_line(ctx, np.abs(alt), "horizon_line", op["horizon_line"])
+        if op["meridian"] > 0:
+            _composite_line(ctx, np.degrees(np.arcsin(np.minimum(np.abs(g[..., 0]), 1.0))), "meridian",
+                            op["meridian"])
+        if op["grid_altaz"] > 0:
+            az = np.degrees(np.arctan2(g[..., 0], g[..., 1]))
+            d_alt = _nearest(alt, GRID_ALT_STEP_DEG)
+            d_az = _nearest(az, GRID_AZ_STEP_DEG) * np.cos(np.radians(alt))
+            d_az = np.where(np.abs(alt) > 80.0, np.where(_nearest(az, 90.0) < GRID_AZ_STEP_DEG / 2,
+                                                         d_az, 90.0), d_az)
+            _composite_line(ctx, np.minimum(d_alt, d_az), "grid_altaz", op["grid_altaz"])
+        if op["grid_equatorial"] > 0 or op["equator"] > 0 or op["ecliptic"] > 0:
+            r = _eq_rotation(ctx).astype(np.float32)   # equatorial -> ENU
+            ez = g @ r[:, 2]
+            dec = np.degrees(np.arcsin(np.clip(ez, -1.0, 1.0)))
+            if op["equator"] > 0:
+                _composite_line(ctx, np.abs(dec), "equator", op["equator"])
+            if op["ecliptic"] > 0:
+                eps = math.radians(OBLIQUITY_DEG)
+                pole = r @ np.array([0.0, -math.sin(eps), math.cos(eps)], dtype=np.float32)
+                _composite_line(ctx, np.degrees(np.arcsin(np.minimum(np.abs(g @ pole), 1.0))), "ecliptic",
+                                op["ecliptic"])
+            if op["grid_equatorial"] > 0:
+                ra = np.degrees(np.arctan2(g @ r[:, 1], g @ r[:, 0]))
+                d_dec = _nearest(dec, GRID_ALT_STEP_DEG)
+                d_ra = _nearest(ra, 15.0 * GRID_RA_STEP_H) * np.cos(np.radians(dec))
+                d_ra = np.where(np.abs(dec) > 80.0, 90.0, d_ra)
+                _composite_line(ctx, np.minimum(d_dec, d_ra), "grid_equatorial", op["grid_equatorial"])
+    if op["cardinals"] > 0:
+        _cardinals(ctx, op["cardinals"])
+    if op["labels"] > 0:
+        _labels(ctx, op["labels"])
+
+
+def _text_px(ctx, size_deg: float) -> int:
+    return int(np.clip(size_deg / ctx.deg_per_px, 10, 160 * max(1.0, ctx.size / 4096)))
+
+
+def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0) -> None:
+    x, y, theta = ctx.project(np.asarray(enu, dtype=float))
+    if not ctx.in_circle(theta):
+        return
+    x, y = float(x), float(y)
+    if ctx.camera.free_view:
+        ang, ux, uy = 0.0, 0.0, -1.0
+    else:
+        ang = upright_angle(x, y, ctx.size)
+        ux, uy = -math.sin(math.radians(ang)), -math.cos(math.radians(ang))
+    draw_text(ctx.rgb, text, x - ux * offset_px, y - uy * offset_px, size_px, ang, colour, opacity)
+
+
+def _cardinals(ctx, opacity: float) -> None:
+    size = _text_px(ctx, CARDINAL_SIZE_DEG)
+    alt = math.radians(1.5 + 0.6 * size * ctx.deg_per_px)
+    col = _colour(ctx, "cardinals", 0.9)
+    for name, az in (("N", 0.0), ("E", 90.0), ("S", 180.0), ("W", 270.0)):
+        a = math.radians(az)
+        _place(ctx, [math.cos(alt) * math.sin(a), math.cos(alt) * math.cos(a), math.sin(alt)], name, size, col,
+               opacity)
+
+
+def _labels(ctx, opacity: float) -> None:
+    size = _text_px(ctx, LABEL_SIZE_DEG)
+    col = _colour(ctx, "labels", 0.8)
+    b = ctx.bodies
+    for entry in ctx.info.get("bodies", []):
+        i = b.index(entry["name"])
+        r_px = math.radians(float(b.angular_radius_deg[i, 0])) / ctx.rad_per_px
+        _place(ctx, b.enu_refracted[i, :, 0], entry["name"], size, col, opacity, offset_px=r_px + 0.9 * size + 3)
+    sf = ctx.stars
+    if sf is None:
+        return
+    bright = np.flatnonzero((sf.vmag < LABEL_MAG_LIMIT) & (sf.alt_deg > 0))
+    for j in bright:  # a few dozen names at most
+        name = STAR_NAMES.get(int(sf.hip[j]))
+        if name:
+            _place(ctx, sf.enu[:, j], name, size, col, opacity, offset_px=0.9 * size + 4)
