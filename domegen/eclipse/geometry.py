@@ -39,17 +39,26 @@ def site_vector(lat_deg, lon_deg, elev_m=0.0) -> np.ndarray:
     return np.stack([rc * np.cos(lam), rc * np.sin(lam), rs + 0.0 * lam])
 
 
-def to_plane(p, d_deg, theta_deg, dmu_deg_h, dd_deg_h):
-    """(xi, eta, zeta, dxi, deta) of Earth-fixed points ``p`` (3, ...); rates per hour."""
-    i, j, k = axes(d_deg, theta_deg)
-    xi = np.sum(p * i, axis=0)
-    eta = np.sum(p * j, axis=0)
-    zeta = np.sum(p * k, axis=0)
+def site_rho(lat_deg, elev_m=0.0):
+    """(rho cos phi', rho sin phi') of sites in Earth equatorial radii (Meeus 1989)."""
+    phi = np.radians(lat_deg)
+    u = np.arctan(_SQ * np.tan(phi))
+    h = np.asarray(elev_m, dtype=float) / (EARTH_RADIUS_KM * 1000.0)
+    return np.cos(u) + h * np.cos(phi), _SQ * np.sin(u) + h * np.sin(phi)
+
+
+def site_to_plane(rcos, rsin, lon_deg, d_deg, theta_deg, dmu_deg_h, dd_deg_h):
+    """(xi, eta, zeta, dxi, deta) of sites given by rho cos/sin phi' and east longitude; rates per hour."""
+    h = np.radians(np.asarray(theta_deg) + lon_deg)
+    d = np.radians(d_deg)
+    sh, ch, sd, cd = np.sin(h), np.cos(h), np.sin(d), np.cos(d)
+    xi = rcos * sh
+    rch = rcos * ch
+    eta = rsin * cd - rch * sd
+    zeta = rsin * sd + rch * cd
     mu1 = np.radians(dmu_deg_h)
-    d1 = np.radians(dd_deg_h)
-    cos_h = np.sum(p[:2] * k[:2], axis=0) / np.maximum(np.cos(np.radians(d_deg)), 1e-12)
-    dxi = mu1 * cos_h
-    deta = mu1 * xi * np.sin(np.radians(d_deg)) - zeta * d1
+    dxi = mu1 * rch
+    deta = mu1 * xi * sd - zeta * np.radians(dd_deg_h)
     return xi, eta, zeta, dxi, deta
 
 
@@ -73,10 +82,15 @@ def surface_point(xi, eta, d_deg, theta_deg, *, on_limb: bool = False):
         disc = np.where(disc > -1e-4, np.maximum(disc, 0.0), disc)
     valid = disc >= 0.0
     zeta = (-qb + np.sqrt(np.where(valid, disc, 0.0))) / (2.0 * qa)
-    i, j, k = axes(d_deg, theta_deg)
-    p = xi * i + eta * j + zeta * k
-    lat = np.degrees(np.arctan2(p[2], (1.0 - EARTH_E2) * np.hypot(p[0], p[1])))
-    lon = np.degrees(np.arctan2(p[1], p[0]))
+    lam = -np.radians(theta_deg)
+    sl, cl = np.sin(lam), np.cos(lam)
+    # p = xi i + eta j + zeta k with the axes of :func:`axes`, written out (no temporaries).
+    w = zeta * cd - eta * sd
+    px = -xi * sl + w * cl
+    py = xi * cl + w * sl
+    pz = eta * cd + zeta * sd
+    lat = np.degrees(np.arctan2(pz, (1.0 - EARTH_E2) * np.hypot(px, py)))
+    lon = np.degrees(np.arctan2(py, px))
     lat = np.where(valid, lat, np.nan)
     lon = np.where(valid, lon, np.nan)
     return lat, lon, np.where(valid, zeta, np.nan), valid

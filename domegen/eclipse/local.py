@@ -126,14 +126,15 @@ class _Shadow:
     def __init__(self, eclipse: SolarEclipse, lat, lon, elev, delta_t_s):
         self.b = eclipse.besselian
         self.dt = delta_t_s
-        self.p = geo.site_vector(lat, lon, elev)
+        self.rcos, self.rsin = geo.site_rho(lat, elev)
         self.lat, self.lon = lat, lon
 
     def __call__(self, t):
         b = self.b
         e = b.at(t)
         th = theta_deg(b, e, self.dt)
-        xi, eta, zeta, dxi, deta = geo.to_plane(self.p, e["d"], th, e["dmu"], e["dd"])
+        xi, eta, zeta, dxi, deta = geo.site_to_plane(self.rcos, self.rsin, self.lon, e["d"], th,
+                                                     e["dmu"], e["dd"])
         u, v = e["x"] - xi, e["y"] - eta
         a, bb = e["dx"] - dxi, e["dy"] - deta
         l1p = e["l1"] - zeta * b.tan_f1
@@ -159,7 +160,7 @@ def local_circumstances(eclipse: SolarEclipse, sites, *, delta_t_s: float | None
     sh = _Shadow(eclipse, lat, lon, elev, dt)
     # Maximum: Newton steps from greatest eclipse.
     t = np.full(lat.shape, eclipse.greatest_t_h)
-    for _ in range(8):
+    for _ in range(5):
         u, v, a, bb, l1p, l2p, _, _ = sh(t)
         t = np.clip(t - (u * a + v * bb) / (a * a + bb * bb), -5.0, 5.0)
     u, v, a, bb, l1p, l2p, _, _ = sh(t)
@@ -173,7 +174,7 @@ def local_circumstances(eclipse: SolarEclipse, sites, *, delta_t_s: float | None
 
     def contact(radius_fn, sign, mask):
         tc = t_max.copy()
-        for _ in range(6):
+        for _ in range(4):
             u, v, a, bb, l1p, l2p, _, _ = sh(tc)
             r = radius_fn(l1p, l2p)
             n2 = a * a + bb * bb
@@ -202,8 +203,8 @@ def local_circumstances(eclipse: SolarEclipse, sites, *, delta_t_s: float | None
         az[c] = np.where(ok, zz, np.nan)
         above[c] = ok & (al > HORIZON_ALT_DEG)
         pa[c] = np.where(ok & (c != "max"), ang, np.nan)
-    # Seen at all: the Sun is up at some moment between C1 and C4 (checked at 9 instants).
-    frac = np.linspace(0.0, 1.0, 9)[:, None]
+    # Seen at all: the Sun is up at some moment between C1 and C4 (checked at 5 instants).
+    frac = np.linspace(0.0, 1.0, 5)[:, None]
     ts_probe = np.where(eclipsed, t_c1, t_max)[None, :] * (1 - frac) + np.where(eclipsed, t_c4, t_max)[None, :] * frac
     seen = np.zeros(lat.shape, dtype=bool)
     for row in ts_probe:

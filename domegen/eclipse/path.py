@@ -128,7 +128,7 @@ def _trace(func, t: np.ndarray):
     if edges.size:
         inside = np.where(ok[edges], t[edges], t[edges + 1])
         outside = np.where(ok[edges], t[edges + 1], t[edges])
-        for _ in range(24):
+        for _ in range(16):
             mid = 0.5 * (inside + outside)
             la, _, v = func(mid)
             v = np.asarray(v, dtype=bool) & np.isfinite(la)
