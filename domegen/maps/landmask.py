@@ -86,9 +86,8 @@ def land_fraction(lat_deg, lon_deg) -> np.ndarray:
     c0f = np.floor(c)
     fc = c - c0f
     c0 = c0f.astype(np.int32)
-    c0[c0 < 0] += nc
-    c1 = c0 + 1
-    c1[c1 >= nc] -= nc
+    c0 = np.where(c0 < 0, c0 + nc, c0)
+    c1 = np.where(c0 + 1 >= nc, c0 + 1 - nc, c0 + 1)
     base = r0 * nc
     g00 = grid[base + c0].astype(np.float32)
     g01 = grid[base + c1].astype(np.float32)

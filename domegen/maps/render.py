@@ -54,7 +54,8 @@ def _utc_s(utc) -> float:
 
 def render_world_map(eclipse, width_px: int = 2048, *, overlay_only: bool = False, sites=(),
                      utc=None, lon0_deg: float | None = None, graticule_deg: float = 15.0,
-                     shadow_at_utc: bool = False, palette: Palette = DEFAULT, path=None) -> Canvas:
+                     shadow_at_utc: bool = False, night: bool = True, palette: Palette = DEFAULT,
+                     path=None) -> Canvas:
     """Equirectangular world map of ``eclipse``; night side at ``utc`` (default greatest)."""
     _check_size(width_px, "width")
     path = eclipse_path(eclipse) if path is None else path
@@ -64,12 +65,12 @@ def render_world_map(eclipse, width_px: int = 2048, *, overlay_only: bool = Fals
     canvas = Canvas(proj.width_px, proj.height_px)
     label_px = max(9, int(width_px) // 110)
     if not overlay_only:
-        basemap.draw_base(canvas, proj, utc, palette)
+        basemap.draw_base(canvas, proj, utc if night else None, palette)
         basemap.draw_graticule(canvas, proj, graticule_deg, palette)
     if shadow_at_utc:
         layers.draw_shadow(canvas, proj, eclipse, _utc_s(utc), palette)
     layers.draw_path(canvas, proj, path, palette, label_px)
-    if not overlay_only:
+    if not overlay_only and night:
         basemap.draw_terminator(canvas, proj, utc, palette)
     basemap.draw_sites(canvas, proj, list(sites), palette, label_px + 2)
     return canvas

@@ -36,7 +36,8 @@ def shadow_at(eclipse: SolarEclipse, utc_s: float, ecef) -> dict[str, np.ndarray
     """Shadow quantities at one instant for Earth-fixed points ``ecef`` (..., 3), Earth radii.
 
     Returns m, L1, L2 (plane units), zeta, magnitude (0 outside the penumbra
-    or where the Sun is below the fundamental plane), obscuration (fraction
+    or where the Sun is below the fundamental plane; the diameter ratio inside
+    the umbra/antumbra), obscuration (fraction
     of the Sun's area covered) and booleans ``partial`` and ``central``.
     """
     b = eclipse.besselian
@@ -50,7 +51,8 @@ def shadow_at(eclipse: SolarEclipse, utc_s: float, ecef) -> dict[str, np.ndarray
     day = zeta > 0.0
     partial = day & (m < L1)
     central = day & (m < np.abs(L2))
-    mag = np.where(partial, (L1 - m) / (L1 + L2), 0.0)
+    # Inside the umbra/antumbra: Moon/Sun diameter ratio (NASA bulletin convention, as the engine).
+    mag = np.where(central, (L1 - L2) / (L1 + L2), np.where(partial, (L1 - m) / (L1 + L2), 0.0))
     obsc = np.zeros_like(m)
     if partial.any():
         obsc[partial] = _obscuration(m[partial], L1[partial], L2[partial])
