@@ -30,6 +30,8 @@ def register(subparsers) -> None:
     out = p.add_mutually_exclusive_group()
     out.add_argument("--json", action="store_true", help="print a JSON list")
     out.add_argument("--csv", action="store_true", help="print CSV with one row per eclipse")
+    p.add_argument("--elements", action="store_true",
+                   help="with --json: add the polynomial Besselian elements (\"besselian\") to solar entries")
     p.set_defaults(func=run)
 
 
@@ -70,6 +72,10 @@ def run(args) -> int:
     start, end = period(args.start, args.end)
     items = collect(start, end, args.kind)
     rows = [e.as_json() for _, _, e in items]
+    if args.elements:
+        for (_, kind, e), r in zip(items, rows):
+            if kind == "solar":
+                r["besselian"] = e.besselian.as_json()
     if args.json:
         print_json(rows)
         return 0

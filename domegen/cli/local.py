@@ -94,9 +94,14 @@ def _print_solar(d: dict, site) -> None:
 
 
 def _print_lunar(d: dict) -> None:
-    print(f"Lunar eclipse of {d.get('eclipse')}:")
+    ecl = d.get("eclipse") or {}
+    when = str(ecl.get("greatest_utc", "")).replace("T", " ").replace("Z", " UTC")
+    print(f"{str(ecl.get('type', '')).capitalize()} lunar eclipse, greatest {when}:")
     for key, info in (d.get("contacts") or {}).items():
         if info is None:
             continue
         where = "above" if info.get("above_horizon") else "below"
         print(f"  {key:<9} {info.get('local')}  Moon alt {info.get('moon_alt_deg'):5.1f} ({where} the horizon)")
+    for phase, info in (d.get("phases") or {}).items():
+        if info:
+            print(f"  {phase} phase seen: {info.get('seen')}")

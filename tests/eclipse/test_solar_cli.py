@@ -31,6 +31,20 @@ def test_eclipses_json(capsys):
     assert rows[0]["type"] == "total" and rows[0]["saros"] == 139
 
 
+def test_eclipses_json_with_besselian_elements(capsys):
+    code, out, _ = run(capsys, "eclipses", "--from", "2024-04-01", "--to", "2024-04-30", "--kind", "solar",
+                       "--json", "--elements")
+    (row,) = json.loads(out)
+    assert code == 0 and row["besselian"]["t0_tt"] == "2024-04-08T18:00:00"
+    assert abs(row["besselian"]["x"][0] - (-0.318244)) < 0.0005  # NASA canon x0 for 2024-04-08
+
+
+def test_local_lunar_eclipse(capsys):
+    code, out, _ = run(capsys, "local", "--eclipse", "2025-03-14", "--lat", "47.2184", "--lon", "-1.5536",
+                       "--tz", "Europe/Paris")
+    assert code == 0 and "lunar eclipse" in out and CAUTION not in out
+
+
 def test_eclipses_all_kinds_text_ends_with_caution(capsys):
     code, out, _ = run(capsys, "eclipses", "--from", "2025-01-01", "--to", "2025-12-31")
     assert code == 0
