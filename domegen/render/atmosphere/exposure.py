@@ -1,8 +1,14 @@
 """Automatic exposure ("eye adaptation") as a pure function of the sky at one instant.
 
-Convention (Lagarde & de Rousiers 2014, "Moving Frostbite to physically based rendering",
-SIGGRAPH course): a linear pixel value is luminance_cd_m2 * exposure_scale(ev) with
-exposure_scale(ev) = 1 / (1.2 * 2^ev), ev being EV at ISO 100.
+EV follows the renderer's convention (domegen.render.tonemap): display-linear value =
+luminance_cd_m2 * exposure_scale(ev). The adaptation luminance is the log-average luminance
+of the sky hemisphere (the Sun's disk excluded). The display value it is shown at follows
+our own two-slope curve (a choice, not a published model):
+
+- L_a >= ADAPTATION_FLOOR_CD_M2: D = 0.18 (L_a / 4000)^0.16 (near-complete adaptation:
+  a 4000 cd/m^2 day sky as mid-grey, a full-Moon sky ~0.02);
+- below the floor the eye stops adapting (lower end of the mesopic range, 0.005 cd/m^2,
+  CIE 191:2010): D falls as L_a^0.7, so a dark-site sky shows near 0.003 and stars stand out.
 """
 
 from __future__ import annotations
@@ -12,9 +18,11 @@ import numpy as np
 from ..sky_model import SkyLight, SkyModel
 from . import spectrum
 
-#: Lowest luminance the automatic exposure adapts to, cd/m^2: the lower end of the mesopic
-#: range, 0.005 cd/m^2 (CIE 191:2010). Darker skies are shown darker, as the eye sees them.
 ADAPTATION_FLOOR_CD_M2 = 0.005
+DAY_CD_M2 = 4000.0
+DAY_DISPLAY = 0.18
+DAY_SLOPE = 0.16
+NIGHT_SLOPE = 0.7
 
 
 def _hemisphere_dirs(n: int = 1024) -> np.ndarray:
@@ -30,8 +38,12 @@ _DIRS = _hemisphere_dirs()
 
 
 def exposure_scale(ev: float) -> float:
-    """Multiplier from cd/m^2 to linear display value for an EV100."""
-    return 1.0 / (1.2 * 2.0 ** ev)
+    """Multiplier from cd/m^2 to display-linear for an EV (the renderer's own function)."""
+    try:
+        from ..tonemap import exposure_scale as renderer_scale
+    except ImportError:  # renderer not installed: its documented convention
+        return 0.18 / 4000.0 * 2.0 ** float(ev)
+    return float(renderer_scale(ev))
 
 
 def adaptation_luminance(light: SkyLight, sky: SkyModel | None = None) -> float:
@@ -45,15 +57,19 @@ def adaptation_luminance(light: SkyLight, sky: SkyModel | None = None) -> float:
     return float(np.exp(np.mean(np.log(y))))
 
 
-def key_value(l_avg: float) -> float:
-    """Brightness the average is mapped to: Krawczyk, Myszkowski & Seidel 2005 (Proc. SPIE 5666)."""
-    return 1.03 - 2.0 / (2.0 + np.log10(l_avg + 1.0))
+def display_value(l_avg: float) -> float:
+    """Display-linear value the adaptation luminance is shown at (see module docstring)."""
+    floor = ADAPTATION_FLOOR_CD_M2
+    d_floor = DAY_DISPLAY * (floor / DAY_CD_M2) ** DAY_SLOPE
+    if l_avg >= floor:
+        return DAY_DISPLAY * (l_avg / DAY_CD_M2) ** DAY_SLOPE
+    return d_floor * (max(l_avg, 1e-12) / floor) ** NIGHT_SLOPE
 
 
 def auto_exposure_ev(light: SkyLight, sky: SkyModel | None = None, dimming: float = 1.0) -> float:
-    """EV100 that maps the sky's log-average luminance to the adaptation key (pure function).
+    """EV that shows the sky's log-average luminance at display_value() (a pure function).
 
-    dimming: the sky-dimming factor applied by the renderer (the eye adapts to what is shown).
+    dimming: the renderer's sky-dimming factor (the eye adapts to what is shown).
     """
-    l_avg = max(adaptation_luminance(light, sky) * dimming, ADAPTATION_FLOOR_CD_M2)
-    return float(np.log2(l_avg / (1.2 * key_value(l_avg))))
+    l_avg = max(adaptation_luminance(light, sky) * dimming, 1e-12)
+    return float(np.log2(display_value(l_avg) / (l_avg * exposure_scale(0.0))))

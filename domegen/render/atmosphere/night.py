@@ -26,15 +26,22 @@ NATURAL_ZENITH_MAG_ARCSEC2 = 21.8
 BORTLE_ZENITH_MAG_ARCSEC2 = {1: 21.85, 2: 21.6, 3: 21.4, 4: 21.0, 5: 20.0, 6: 19.1, 7: 18.6,
                              8: 17.8, 9: 17.0}
 
-#: Chromaticity (linear sRGB, luminance 1) of the natural night sky: a 4700 K black body,
-#: the colour temperature of B-V = 1.03 (Paranal night sky, Patat 2008, A&A 481, 575) by
-#: Ballesteros' 2012 formula.
 def _blackbody_rgb(temperature_k: float) -> np.ndarray:
     rgb = spectrum.spectrum_to_rgb(spectrum.planck_shape(spectrum.WAVELENGTHS_NM, temperature_k))
     return rgb / (rgb @ spectrum.RGB_LUMA)
 
 
-NATURAL_RGB = _blackbody_rgb(4700.0)
+def _xy_rgb(x: float, y: float) -> np.ndarray:
+    xyz = np.array([x / y, 1.0, (1.0 - x - y) / y])
+    rgb = spectrum.XYZ_TO_SRGB @ xyz
+    return rgb / (rgb @ spectrum.RGB_LUMA)
+
+
+#: Colour (linear sRGB, luminance 1) of the natural night sky as the dark-adapted eye sees it:
+#: the scotopic "blue shift" chromaticity x = y = 0.25 of Jensen et al. 2001 ("A physically-based
+#: night sky model", SIGGRAPH; from memory). Measured, the glow is redder (B-V = 1.03 at Paranal,
+#: Patat 2008, A&A 481, 575) but it is far below colour vision.
+NATURAL_RGB = _xy_rgb(0.25, 0.25)
 #: Artificial sky glow: a 3000 K black body (warm street lighting; from memory).
 ARTIFICIAL_RGB = _blackbody_rgb(3000.0)
 

@@ -16,6 +16,11 @@ from .scatter import SUN_ALT_GRID, marched_xyz, scattered_xyz, site_table
 HEIGHT_STEP_M = 100.0
 
 
+_SUN_RGB = spectrum.sun_rgb_lux()
+#: Per-channel gains that make sunlight white at unchanged luminance.
+_WHITE_BALANCE = (_SUN_RGB @ spectrum.RGB_LUMA) / _SUN_RGB
+
+
 def _gamut_clip(rgb: np.ndarray) -> np.ndarray:
     """Bring negative linear sRGB components to 0 at constant luminance (desaturate)."""
     y = rgb @ spectrum.RGB_LUMA
@@ -40,6 +45,10 @@ class PhysicalSky:
     atmosphere: Atmosphere = field(default_factory=Atmosphere)
     natural_zenith_mag_arcsec2: float = night.NATURAL_ZENITH_MAG_ARCSEC2
     march_steps: int = 16
+    #: Show sunlight above the atmosphere as white (divide scattered light by the Sun's colour,
+    #: luminance kept), as the "white balance" option of Bruneton's 2017 precomputed-scattering
+    #: demo; the eye adapts to daylight. transmittance() is relative to that colour either way.
+    white_balance: bool = True
 
     def _height(self, light: SkyLight) -> float:
         return float(np.round(max(light.site_elev_m, 0.0) / HEIGHT_STEP_M) * HEIGHT_STEP_M)
@@ -75,6 +84,8 @@ class PhysicalSky:
         """Sky radiance for view directions (3, M) -> (M, 3) float32 linear sRGB, cd/m^2."""
         xyz = self.scattered_xyz(dirs_enu, light)
         rgb = xyz.astype(np.float64) @ spectrum.XYZ_TO_SRGB.T
+        if self.white_balance:
+            rgb = rgb * _WHITE_BALANCE
         rgb = _gamut_clip(rgb) + self.night_rgb(dirs_enu, light)
         return rgb.astype(np.float32)
 
