@@ -17,7 +17,7 @@ import yaml
 from domegen.errors import SceneError
 
 #: Guards against alias bombs and self-referencing aliases.
-MAX_NODES = 200_000
+MAX_NODES = 50_000
 MAX_DEPTH = 64
 MAX_BYTES = 4_000_000
 
