@@ -113,14 +113,18 @@ class EventResolver:
                 self._solar = local_circumstances(ecl, self.site)
             except DomegenError as err:
                 raise ctx.error(err.message, hint=err.hint) from None
-        attr = "max_utc" if key == "max" else f"{key}_utc"
-        utc = _first(getattr(self._solar, attr, None))
+        lc = self._solar
+        if hasattr(lc, "utc"):
+            utc = lc.utc(key, 0)
+        else:  # per-contact attributes
+            utc = _first(getattr(lc, "max_utc" if key == "max" else f"{key}_utc", None))
         if utc is None:
-            mag = _first(getattr(self._solar, "magnitude", None))
-            what = "total or annular" if key in ("c2", "c3") else "visible"
-            raise ctx.error(f"{_SOLAR_LABEL[key]} does not happen at the venue (the eclipse is not {what} here"
-                            + (f"; magnitude {float(mag):.3f}" if mag is not None else "") + ")",
-                            hint="move the venue into the path, or anchor on 'maximum'")
+            mag = _first(getattr(lc, "magnitude", None))
+            here = _first(getattr(lc, "type_here", None))
+            what = f"a {here} eclipse here" if here is not None else "not total here"
+            raise ctx.error(f"{_SOLAR_LABEL[key]} does not happen at the venue ({what}"
+                            + (f", magnitude {float(mag):.3f}" if mag is not None else "") + ")",
+                            hint="C2/C3 need a venue inside the path of totality; or anchor on 'maximum'")
         return self._remember(_SOLAR_LABEL[key], _aware(utc))
 
     def _lunar_event(self, key: str, ctx) -> datetime:
