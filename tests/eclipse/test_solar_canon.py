@@ -40,6 +40,8 @@ def test_point_of_greatest_eclipse(ref):
     assert abs(((e.lon_deg - lon_ref + 180) % 360) - 180) <= 0.2
     if ref["sun_alt_deg"] is not None:
         assert abs(e.sun_alt_deg - ref["sun_alt_deg"]) <= 0.2
+    if ref.get("sun_az_deg") is not None:
+        assert abs(((e.sun_az_deg - ref["sun_az_deg"] + 180) % 360) - 180) <= 0.5
 
 
 @pytest.mark.parametrize("ref", [r for r in ROWS if r["path_width_km"] is not None], ids=lambda r: r["date"])
