@@ -54,7 +54,7 @@ def limb_darkening(mu: np.ndarray) -> np.ndarray:
     """(..., ) mu = cos(angle from disk normal) -> (..., 3) I(mu)/I(1) for R, G, B."""
     mu = np.clip(mu, 0.0, 1.0)[..., None]
     powers = mu ** np.arange(6)
-    return (powers * _LIMB[None]).sum(axis=-1) / _LIMB.sum(axis=1)
+    return (powers[..., None, :] * _LIMB).sum(axis=-1) / _LIMB.sum(axis=1)
 
 
 def tint(rgb) -> np.ndarray:

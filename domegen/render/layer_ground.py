@@ -28,20 +28,23 @@ _TABLE = 8192
 
 @functools.lru_cache(maxsize=16)
 def skyline_table(seed: int) -> np.ndarray:
-    """Skyline altitude (deg) at _TABLE azimuths 0..360 (periodic): rolling hills and tree tops."""
+    """Skyline altitude (deg) at _TABLE azimuths 0..360 (periodic): rolling hills and clumps of tree crowns."""
     rng = np.random.default_rng([seed, 2718])
-    az = np.arange(_TABLE) * (2 * np.pi / _TABLE)
-    h = np.zeros(_TABLE)
-    f = np.arange(1, 49)
-    amp = rng.normal(size=f.size) / f ** 1.1
+    az = np.arange(_TABLE) * (360.0 / _TABLE)
+    rad = np.radians(az)
+    f = np.arange(1, 25)
+    amp = rng.normal(size=f.size) / f ** 1.2
     ph = rng.uniform(0, 2 * np.pi, f.size)
-    h += (amp[:, None] * np.cos(f[:, None] * az[None] + ph[:, None])).sum(axis=0)
-    h = (h - h.min()) / max(np.ptp(h), 1e-9) * 1.6 + 0.25
-    ft = np.arange(60, 420, 3)
-    trees = (rng.normal(size=ft.size)[:, None] / np.sqrt(ft)[:, None]
-             * np.cos(ft[:, None] * az[None] + rng.uniform(0, 2 * np.pi, ft.size)[:, None])).sum(axis=0)
-    woods = np.clip(np.cos(3 * az + rng.uniform(0, 6.3)) + np.cos(7 * az + rng.uniform(0, 6.3)), 0, None)
-    h += np.clip(trees * 3.0, 0.0, None) * woods
+    hills = (amp[:, None] * np.cos(f[:, None] * rad[None] + ph[:, None])).sum(axis=0)
+    h = (hills - hills.min()) / max(np.ptp(hills), 1e-9) * 1.2 + 0.2
+    # woods: clumps of semi-elliptic crowns 0.3-1.2 deg wide, 0.4-1.6 deg tall above the hills
+    centres = rng.uniform(0, 360, 9)
+    crowns_az = (centres[rng.integers(0, 9, 260)] + rng.normal(0, 7.0, 260)) % 360.0
+    width = rng.uniform(0.15, 0.6, 260)
+    height = rng.uniform(0.4, 1.6, 260)
+    d = (az[None, :] - crowns_az[:, None] + 180.0) % 360.0 - 180.0
+    crowns = height[:, None] * np.sqrt(np.clip(1.0 - (d / width[:, None]) ** 2, 0.0, None))
+    h = h + crowns.max(axis=0)
     return np.clip(h, 0.1, SKYLINE_MAX_DEG - 0.2)
 
 

@@ -121,8 +121,9 @@ def draw_overlays(ctx) -> None:
         _labels(ctx, op["labels"])
 
 
-def _text_px(ctx, size_deg: float) -> int:
-    return int(np.clip(size_deg / ctx.deg_per_px, 10, 160 * max(1.0, ctx.size / 4096)))
+def _text_px(ctx, size_deg: float, frac_max: float = 0.012) -> int:
+    """Text height in px: size_deg on the dome, at most frac_max of the frame (close-ups), at least 10 px."""
+    return int(max(10, min(size_deg / ctx.deg_per_px, frac_max * ctx.size)))
 
 
 def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0) -> None:
@@ -139,7 +140,7 @@ def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0) -> None:
 
 
 def _cardinals(ctx, opacity: float) -> None:
-    size = _text_px(ctx, CARDINAL_SIZE_DEG)
+    size = _text_px(ctx, CARDINAL_SIZE_DEG, 0.022)
     alt = math.radians(1.5 + 0.6 * size * ctx.deg_per_px)
     col = _colour(ctx, "cardinals", 0.9)
     for name, az in (("N", 0.0), ("E", 90.0), ("S", 180.0), ("W", 270.0)):
