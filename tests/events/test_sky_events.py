@@ -109,3 +109,19 @@ def test_bad_periods_are_input_errors():
     with pytest.raises(InputError):
         sky_events(NANTES, datetime(2020, 1, 1, tzinfo=UTC), datetime(2020, 2, 1, tzinfo=UTC),
                    kinds=("meteor",))
+
+
+def test_window_altitudes_match_skyfield_topocentric_altaz():
+    # reference: skyfield's own topocentric apparent altaz (with its refraction), sampled densely
+    import numpy as np
+
+    from domegen.sky.events import altitudes_deg, window_altitudes_deg
+
+    mid = np.array([1.60e9, 1.65e9, 1.70e9])
+    offs = np.arange(-12 * 3600.0, 12 * 3600.0 + 1, 1200.0)
+    fast = window_altitudes_deg(NANTES, ("Sun", "Moon", "Venus"), mid, offs)
+    for name, alt in fast.items():
+        ref = altitudes_deg(NANTES, name, mid[:, None] + offs[None, :])
+        up = ref > 1.0  # the two refraction formulas part ways below the horizon
+        assert up.sum() > 20
+        assert np.max(np.abs(alt - ref)[up]) < 0.05, name
