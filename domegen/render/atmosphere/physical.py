@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
@@ -21,17 +22,30 @@ _SUN_RGB = spectrum.sun_rgb_lux()
 _WHITE_BALANCE = (_SUN_RGB @ spectrum.RGB_LUMA) / _SUN_RGB
 
 
+_XYZ_TO_RGB = spectrum.XYZ_TO_SRGB.T.astype(np.float32)
+_XYZ_TO_RGB_WB = (spectrum.XYZ_TO_SRGB.T * _WHITE_BALANCE[None, :]).astype(np.float32)
+
+
+@lru_cache(maxsize=32)
+def _night_table(atm: Atmosphere, site_elev_m: float, natural_mag: float, lp_mag: float | None) -> np.ndarray:
+    """Night glow (natural + artificial) linear sRGB over 1024 values of sin(altitude) in -1..1."""
+    alt = np.degrees(np.arcsin(np.linspace(-1.0, 1.0, 1024)))
+    lum = night.natural_luminance(alt, v_extinction(atm, site_elev_m), natural_mag)
+    rgb = lum[:, None] * night.NATURAL_RGB
+    if lp_mag is not None:
+        rgb = rgb + night.artificial_luminance(alt, lp_mag)[:, None] * night.ARTIFICIAL_RGB
+    return rgb.astype(np.float32)
+
+
 def _gamut_clip(rgb: np.ndarray) -> np.ndarray:
-    """Bring negative linear sRGB components to 0 at constant luminance (desaturate)."""
-    y = rgb @ spectrum.RGB_LUMA
-    lo = rgb.min(axis=1)
-    need = lo < 0.0
-    if np.any(need):
-        yy = np.maximum(y[need], 0.0)[:, None]
+    """Bring negative linear sRGB components to 0 at constant luminance (desaturate), in place."""
+    need = np.flatnonzero(rgb.min(axis=1) < 0.0)
+    if need.size:
         c = rgb[need]
+        yy = np.maximum(c @ spectrum.RGB_LUMA.astype(rgb.dtype), 0.0)[:, None]
         s = yy / np.maximum(yy - c.min(axis=1, keepdims=True), 1e-30)
-        rgb[need] = yy + (c - yy) * s
-    return np.maximum(rgb, 0.0)
+        rgb[need] = np.maximum(yy + (c - yy) * s, 0.0)
+    return rgb
 
 
 @dataclass(frozen=True)
@@ -71,23 +85,19 @@ class PhysicalSky:
 
     def night_rgb(self, dirs_enu: np.ndarray, light: SkyLight) -> np.ndarray:
         """Natural night glow + artificial sky glow, linear sRGB (M, 3) cd/m^2."""
-        alt = np.degrees(np.arcsin(np.clip(np.asarray(dirs_enu)[2], -1.0, 1.0)))
-        k_v = v_extinction(self.atmosphere, light.site_elev_m)
-        lum = night.natural_luminance(alt, k_v, self.natural_zenith_mag_arcsec2)
-        rgb = lum[:, None] * night.NATURAL_RGB
-        if light.light_pollution_mag_arcsec2 is not None:
-            art = night.artificial_luminance(alt, light.light_pollution_mag_arcsec2)
-            rgb = rgb + art[:, None] * night.ARTIFICIAL_RGB
-        return rgb
+        table = _night_table(self.atmosphere, float(light.site_elev_m), float(self.natural_zenith_mag_arcsec2),
+                             light.light_pollution_mag_arcsec2)
+        z = np.asarray(dirs_enu)[2].astype(np.float32)
+        x = np.linspace(-1.0, 1.0, table.shape[0], dtype=np.float32)
+        return np.stack([np.interp(z, x, table[:, k]) for k in range(3)], axis=1).astype(np.float32)
 
     def radiance(self, dirs_enu: np.ndarray, light: SkyLight) -> np.ndarray:
         """Sky radiance for view directions (3, M) -> (M, 3) float32 linear sRGB, cd/m^2."""
         xyz = self.scattered_xyz(dirs_enu, light)
-        rgb = xyz.astype(np.float64) @ spectrum.XYZ_TO_SRGB.T
-        if self.white_balance:
-            rgb = rgb * _WHITE_BALANCE
-        rgb = _gamut_clip(rgb) + self.night_rgb(dirs_enu, light)
-        return rgb.astype(np.float32)
+        rgb = xyz @ (_XYZ_TO_RGB_WB if self.white_balance else _XYZ_TO_RGB)
+        rgb = _gamut_clip(rgb)
+        rgb += self.night_rgb(dirs_enu, light)
+        return rgb
 
     def transmittance(self, alt_deg: np.ndarray, light: SkyLight) -> np.ndarray:
         """Point-source transmittance per RGB channel (..., 3), Kasten & Young air mass."""
