@@ -10,7 +10,8 @@ distance from the shadow axis is the radius that defines the curve (Meeus,
 - ``penumbra_north`` / ``penumbra_south``: L1' (limits of the partial eclipse);
 - ``magnitude_north`` / ``magnitude_south`` with ``magnitude`` G: L1' - G (L1' + L2');
 - ``begins_at_sunrise``, ``ends_at_sunrise``, ``begins_at_sunset``, ``ends_at_sunset``:
-  points on the Earth's limb (Sun on the horizon) crossed by the penumbral edge at t.
+  points on the Earth's limb (Sun on the horizon) crossed by the penumbral edge at t;
+- ``max_at_sunrise``, ``max_at_sunset``: limb points inside the penumbra whose local maximum is at t.
 
 Times are sampled every ``step_s`` seconds; the ends of every run are found
 by bisection and intervals where a curve turns by more than
@@ -170,50 +171,97 @@ def _bend_deg(lat, lon) -> np.ndarray:
     return turn
 
 
-def _rise_set(eclipse: SolarEclipse, t: np.ndarray, samples: int = 1440):
-    """Pieces of the four rise/set curves: where the penumbral edge crosses the Earth's limb."""
-    b = eclipse.besselian
+def _limb_roots(b, t: np.ndarray, func, samples: int = 1440):
+    """Points of the Earth's limb (Sun on the horizon) where ``func`` changes sign, at every time.
+
+    ``func(e, xi, eta)`` is evaluated on (T, samples) grids of limb points.  Returns the root
+    times and plane coordinates, the elements there, and the ground points.
+    """
     e = b.at(t)
     rho = geo.limb_rho(e["d"])
     th = np.linspace(0.0, 2.0 * np.pi, samples, endpoint=False)
-    ex = np.cos(th)[None, :]
+    ex = np.broadcast_to(np.cos(th)[None, :], (t.size, samples))
     ey = rho[:, None] * np.sin(th)[None, :]
-    f = (ex - e["x"][:, None]) ** 2 + (ey - e["y"][:, None]) ** 2 - e["l1"][:, None] ** 2
+    grid = {k: v[:, None] for k, v in e.items()}
+    f = func(grid, ex, ey)
     f_next = np.roll(f, -1, axis=1)
     ti, ai = np.nonzero((f < 0) != (f_next < 0))
-    if ti.size == 0:
-        return []
     frac = f[ti, ai] / (f[ti, ai] - f_next[ti, ai])
     ang = th[ai] + frac * (2.0 * np.pi / samples)
     tt = t[ti]
     ee = b.at(tt)
-    r = geo.limb_rho(ee["d"])
-    xi, eta = np.cos(ang), r * np.sin(ang)
+    xi, eta = np.cos(ang), geo.limb_rho(ee["d"]) * np.sin(ang)
     lat, lon, _, ok = geo.surface_point(xi, eta, ee["d"], theta_deg(b, ee), on_limb=True)
-    # Entering or leaving the penumbra, and rising or setting Sun (zeta' = -mu' xi cos d).
+    return tt, ang, xi, eta, ee, lat, lon, ok
+
+
+def _closing_rate(e, xi, eta):
+    """u a + v b for limb points (zeta = 0): negative while the axis approaches the point."""
     from domegen.eclipse.solar import _point_rates
 
-    dxi, deta = _point_rates(ee, xi, eta, np.zeros_like(xi))
-    closing = (ee["x"] - xi) * (ee["dx"] - dxi) + (ee["y"] - eta) * (ee["dy"] - deta) < 0
-    rising = xi < 0
-    # Branch: counter-clockwise or clockwise of the axis direction seen from the Earth's centre.
-    axis_ang = np.arctan2(ee["y"], ee["x"])
-    ccw = ((ang - axis_ang) % (2.0 * np.pi)) < np.pi
+    dxi, deta = _point_rates(e, xi, eta, np.zeros_like(xi))
+    return (e["x"] - xi) * (e["dx"] - dxi) + (e["y"] - eta) * (e["dy"] - deta)
+
+
+def _split_pieces(name, tt, lat, lon, step):
+    """Time-ordered pieces; where several roots share an instant keep the one nearest the previous point."""
+    order = np.lexsort((lon, tt))
+    ts, la, lo = tt[order], lat[order], lon[order]
+    keep = np.ones(ts.size, dtype=bool)
+    dup = np.flatnonzero(np.diff(ts) == 0) + 1
+    if dup.size:
+        last = 0
+        for i in range(1, ts.size):  # a few hundred points at most
+            if ts[i] == ts[last] and keep[last]:
+                prev = last - 1 if last > 0 else None
+                if prev is not None and (abs(la[i] - la[prev]) + abs(lo[i] - lo[prev])
+                                         < abs(la[last] - la[prev]) + abs(lo[last] - lo[prev])):
+                    keep[last] = False
+                    last = i
+                else:
+                    keep[i] = False
+            else:
+                last = i
+    ts, la, lo = ts[keep], la[keep], lo[keep]
+    breaks = np.flatnonzero(np.diff(ts) > 1.5 * step) + 1
+    return [(name, (ts[p], la[p], lo[p])) for p in np.split(np.arange(ts.size), breaks) if p.size >= 2]
+
+
+def _rise_set(eclipse: SolarEclipse, t: np.ndarray):
+    """Pieces of the rise/set curves.
+
+    begins/ends_at_sunrise/sunset: the penumbral edge crosses the limb; max_at_sunrise/sunset:
+    the local maximum (u a + v b = 0) happens on the limb inside the penumbra.
+    """
+    b = eclipse.besselian
+    step = float(np.median(np.diff(t))) if t.size > 1 else 1.0
     out = []
-    for branch in (True, False):
-        for begins in (True, False):
+
+    def edge(e, xi, eta):
+        return (xi - e["x"]) ** 2 + (eta - e["y"]) ** 2 - e["l1"] ** 2
+
+    tt, ang, xi, eta, ee, lat, lon, ok = _limb_roots(b, t, edge)
+    if tt.size:
+        closing = _closing_rate(ee, xi, eta) < 0
+        rising = xi < 0  # zeta' = -mu' xi cos d > 0: the Sun is rising there
+        # Branch: counter-clockwise or clockwise of the axis direction seen from the Earth's centre.
+        ccw = ((ang - np.arctan2(ee["y"], ee["x"])) % (2.0 * np.pi)) < np.pi
+        for branch in (True, False):
+            for begins in (True, False):
+                for rise in (True, False):
+                    sel = (ccw == branch) & (closing == begins) & (rising == rise) & ok
+                    name = ("begins" if begins else "ends") + ("_at_sunrise" if rise else "_at_sunset")
+                    out += _split_pieces(name, tt[sel], lat[sel], lon[sel], step)
+    tt, ang, xi, eta, ee, lat, lon, ok = _limb_roots(b, t, _closing_rate)
+    if tt.size:
+        inside = np.hypot(ee["x"] - xi, ee["y"] - eta) < ee["l1"]
+        rising = xi < 0
+        ccw = ((ang - np.arctan2(ee["y"], ee["x"])) % (2.0 * np.pi)) < np.pi
+        for branch in (True, False):
             for rise in (True, False):
-                sel = (ccw == branch) & (closing == begins) & (rising == rise) & ok
-                if sel.sum() < 2:
-                    continue
-                name = ("begins" if begins else "ends") + ("_at_sunrise" if rise else "_at_sunset")
-                order = np.argsort(tt[sel], kind="stable")
-                ts, la, lo = tt[sel][order], lat[sel][order], lon[sel][order]
-                step = np.median(np.diff(t))
-                breaks = np.flatnonzero(np.diff(ts) > 1.5 * step) + 1
-                for part in np.split(np.arange(ts.size), breaks):
-                    if part.size >= 2:
-                        out.append((name, (ts[part], la[part], lo[part])))
+                sel = inside & ok & (rising == rise) & (ccw == branch)
+                out += _split_pieces("max_at_sunrise" if rise else "max_at_sunset", tt[sel], lat[sel], lon[sel],
+                                     step)
     return out
 
 

@@ -67,11 +67,25 @@ def test_curves_present_and_ordered(path_2024):
     names = set(path_2024.names)
     assert {"central", "umbra_north", "umbra_south", "penumbra_north", "penumbra_south",
             "magnitude_north", "magnitude_south"} <= names
-    assert names & {"begins_at_sunrise", "ends_at_sunset"}
+    assert {"begins_at_sunrise", "ends_at_sunset", "max_at_sunrise", "max_at_sunset"} <= names
     for c in path_2024.curves:
         assert np.all(np.diff(c.utc_s) > 0)
         assert np.all(np.abs(c.lat_deg) <= 90) and np.all(np.abs(c.lon_deg) <= 180)
     assert {c.magnitude for c in path_2024.pieces("magnitude_north")} == {0.2, 0.4, 0.6, 0.8}
+
+
+def test_rise_set_curves_are_on_the_horizon(path_2024):
+    """Points of the sunrise/sunset curves have the Sun on the horizon at the curve's instant."""
+    from domegen.eclipse.geometry import sun_altaz
+    from domegen.eclipse.solar import theta_deg
+
+    b = path_2024.eclipse.besselian
+    for name in ("begins_at_sunrise", "ends_at_sunset", "max_at_sunrise", "max_at_sunset"):
+        for c in path_2024.pieces(name):
+            t_h = (c.utc_s - b.utc_s(0.0)) / 3600.0
+            e = b.at(t_h)
+            alt, _ = sun_altaz(c.lat_deg, c.lon_deg, e["d"], theta_deg(b, e))
+            assert np.max(np.abs(alt)) < 0.05, name
 
 
 def test_limits_agree_with_local_circumstances(path_2024):
