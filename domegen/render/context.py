@@ -24,6 +24,8 @@ class RenderContext:
     sky_model: object
     light: SkyLight
     sky_coarse: np.ndarray | None = None
+    #: Eclipse hook modules active for this frame (see frame.eclipse_modules).
+    eclipse_modules: list = field(default_factory=list)
     exposure_ev: float = 0.0
     info: dict = field(default_factory=dict)
 

@@ -88,25 +88,80 @@ def check_memory(camera) -> None:
                               value=camera.size_px, hint=f"use a smaller size or raise {MEMORY_ENV}")
 
 
-def _hooks(name: str):
-    found = []
-    for mod_name in _HOOK_MODULES:
+#: Eclipse hook modules are consulted only near syzygy: Sun-Moon separation below this (solar)...
+SOLAR_HOOK_SEPARATION_DEG = 2.5
+#: ... or above this (lunar: the Moon near the anti-Sun, within the penumbra's reach).
+LUNAR_HOOK_SEPARATION_DEG = 176.0
+
+
+def eclipse_modules(bodies) -> list:
+    """The optional eclipse hook modules relevant at this instant (cheap geometric pre-check)."""
+    s, m = bodies.index("Sun"), bodies.index("Moon")
+    c = float(np.clip(bodies.enu[s, :, 0] @ bodies.enu[m, :, 0], -1.0, 1.0))
+    sep = math.degrees(math.acos(c))
+    wanted = []
+    if sep < SOLAR_HOOK_SEPARATION_DEG:
+        wanted.append(_HOOK_MODULES[0])
+    if sep > LUNAR_HOOK_SEPARATION_DEG:
+        wanted.append(_HOOK_MODULES[1])
+    mods = []
+    for name in wanted:
         try:
-            mod = importlib.import_module(mod_name)
+            mods.append(importlib.import_module(name))
         except ImportError:
             continue
-        fn = getattr(mod, name, None)
-        if fn is not None:
-            found.append(fn)
-    return found
+    return mods
+
+
+def _hooks(mods, name: str):
+    return [getattr(m, name) for m in mods if getattr(m, name, None) is not None]
 
 
 def light_pollution_mag(layers) -> float | None:
-    if layers.light_pollution_mag_arcsec2 is not None:
-        return float(layers.light_pollution_mag_arcsec2)
-    if layers.light_pollution_bortle is not None:
-        return BORTLE_MAG_ARCSEC2[layers.light_pollution_bortle]
-    return None
+    """The ARTIFICIAL zenith brightness (mag/arcsec^2) for SkyLight, from a Bortle class or a measured total."""
+    try:
+        from domegen.render.atmosphere import light_pollution_mag_arcsec2
+    except ImportError:
+        light_pollution_mag_arcsec2 = None
+    if light_pollution_mag_arcsec2 is not None:
+        return light_pollution_mag_arcsec2(bortle=layers.light_pollution_bortle,
+                                           measured_mag_arcsec2=layers.light_pollution_mag_arcsec2)
+    total = layers.light_pollution_mag_arcsec2
+    if total is None and layers.light_pollution_bortle is not None:
+        total = BORTLE_MAG_ARCSEC2[layers.light_pollution_bortle]
+    if total is None:
+        return None
+    art = float(mag_arcsec2_to_cd_m2(total) - mag_arcsec2_to_cd_m2(22.0))
+    return None if art <= 0 else float(-2.5 * np.log10(art / 10.8e4))
+
+
+class NoAtmosphere:
+    """The sky model of ``atmosphere = 0``: no sky light, no extinction (daytime stars)."""
+
+    name = "none"
+
+    def radiance(self, dirs_enu, light):
+        return np.zeros((np.asarray(dirs_enu).shape[1], 3), dtype=np.float32)
+
+    def transmittance(self, alt_deg, light):
+        return np.ones(np.shape(alt_deg) + (3,))
+
+
+def _auto_exposure(model, light, layers, sky, sky_dirs) -> float:
+    dimming = layers.atmosphere * layers.sky_dimming
+    if type(model).__name__ == "PhysicalSky":
+        try:
+            from domegen.render.atmosphere import auto_exposure_ev as physical_auto
+        except ImportError:
+            physical_auto = None
+        if physical_auto is not None:
+            return float(physical_auto(light, sky=model, dimming=max(dimming, 1e-6)))
+    lum = 0.2126 * sky[0] + 0.7152 * sky[1] + 0.0722 * sky[2]
+    up = sky_dirs[2] > 0.05
+    ref = float(np.median(lum[up])) if up.any() else float(lum.mean())
+    if dimming <= 0 or ref <= 0:
+        ref = float(mag_arcsec2_to_cd_m2(22.0))
+    return auto_exposure_ev(ref)
 
 
 def sky_light(spec: FrameSpec, bodies) -> SkyLight:
@@ -210,20 +265,18 @@ def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, ou
 
         stars = star_field(spec.site, spec.utc, mag_limit=layers.star_mag_limit)
     model = sky_model if sky_model is not None else sky_model_named(layers.sky_model)
+    if layers.atmosphere <= 0:
+        model = NoAtmosphere()
     light = sky_light(spec, bodies)
-    for hook in _hooks("eclipse_light"):
+    mods = eclipse_modules(bodies)
+    for hook in _hooks(mods, "eclipse_light"):
         light = hook(spec, light, bodies)
 
     sky, sky_dirs = coarse_sky(camera, model, light)
     sky *= np.float32(layers.atmosphere * layers.sky_dimming)
     ev = layers.exposure_ev
     if ev is None:
-        lum = 0.2126 * sky[0] + 0.7152 * sky[1] + 0.0722 * sky[2]
-        up = sky_dirs[2] > 0.05
-        ref = float(np.median(lum[up])) if up.any() else float(lum.mean())
-        if layers.atmosphere * layers.sky_dimming <= 0:
-            ref = float(mag_arcsec2_to_cd_m2(22.0))
-        ev = auto_exposure_ev(ref)
+        ev = _auto_exposure(model, light, layers, sky, sky_dirs)
     n = camera.size_px
     if out is None or out.shape != (3, n, n) or out.dtype != np.float32:
         out = np.empty((3, n, n), dtype=np.float32)
@@ -233,14 +286,14 @@ def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, ou
         out[...] = 0.0
         sky[...] = 0.0
     ctx = RenderContext(spec=spec, rgb=out, bodies=bodies, stars=stars, sky_coarse=sky,
-                        sky_model=model, light=light, exposure_ev=float(ev),
+                        sky_model=model, light=light, exposure_ev=float(ev), eclipse_modules=mods,
                         info={"exposure_ev": round(float(ev), 4), "bodies": [],
                               "sky_model": getattr(model, "name", type(model).__name__)})
     layer_stars.draw_stars(ctx, layers.stars)
     layer_bodies.draw_sun(ctx, layers.sun)
     layer_bodies.draw_planets(ctx, layers.planets)
     layer_bodies.draw_moon(ctx, layers.moon)
-    for hook in _hooks("paint"):
+    for hook in _hooks(mods, "paint"):
         hook(ctx)
     layer_ground.draw_ground(ctx, layers.ground)
     layer_overlays.draw_overlays(ctx)

@@ -134,6 +134,8 @@ def draw_sun(ctx, opacity: float) -> None:
     e_rgb = lux_from_v(b.magnitude[i, 0]) * np.asarray(trans).reshape(3) * opacity * ctx.light.sun_visible_fraction
     r = math.radians(float(b.angular_radius_deg[i, 0]))
     box = ctx.box(c, math.degrees(r))
+    if any(getattr(m, "draws_sun_disk", lambda _ctx: False)(ctx) for m in ctx.eclipse_modules):
+        box = None   # an eclipse layer paints the photosphere itself
     if box is not None:
         dirs = ctx.window_dirs(box)
         X, Y, _, _ = _disk_coords(dirs, c, r)
@@ -167,16 +169,6 @@ def _draw_glare(ctx, c, e_rgb) -> None:
     y0, y1, x0, x1 = box
     for k in range(3):
         ctx.rgb[k, y0:y1, x0:x1] += (prof * (e_rgb[k] / total)).astype(np.float32)
-
-
-def _hook(name):
-    try:
-        import importlib
-
-        mod = importlib.import_module("domegen.render.eclipse_lunar")
-    except ImportError:
-        return None
-    return getattr(mod, name, None)
 
 
 def draw_moon(ctx, opacity: float) -> None:
@@ -215,8 +207,10 @@ def draw_moon(ctx, opacity: float) -> None:
     rad = np.zeros(X.shape + (3,))
     if total > 0:
         rad = (lit * (e_lit / total))[..., None] * trans[None, None, :]
-        shade = _hook("moon_shade")
-        if shade is not None:
+        for m in ctx.eclipse_modules:
+            shade = getattr(m, "moon_shade", None)
+            if shade is None:
+                continue
             flat = rad[inside]
             rad[inside] = shade(ctx, dirs[inside].T, flat)
     # earthshine: flat, the full Moon's mean surface brightness x 1e-4 x Earth's phase

@@ -71,8 +71,7 @@ class GradientSky:
         day = f_diffuse * usno_illuminance_lux(h) * light.sun_visible_fraction / math.pi
         if h <= -18.0:
             day = 0.0
-        night_mag = light.light_pollution_mag_arcsec2 or NIGHT_MAG_ARCSEC2
-        night = float(mag_arcsec2_to_cd_m2(night_mag))
+        night = self._night(light)
         moon = 0.02 * light.moon_illuminance_lux / math.pi * (light.moon_alt_deg > 0)
         return day + night + moon
 
@@ -105,10 +104,16 @@ class GradientSky:
         warm = _normalise_luma([1.0, 0.55, 0.25])[None] * (low * horizon * near_sun)[:, None]
         day_col = day_col * (1 - (low * horizon * near_sun)[:, None]) + warm
         night_col = _normalise_luma([0.72, 0.80, 1.0])[None]
-        night_lum = float(mag_arcsec2_to_cd_m2(light.light_pollution_mag_arcsec2 or NIGHT_MAG_ARCSEC2))
+        night_lum = self._night(light)
         w = day_w * (1.0 - night_lum / max(self.mean_luminance(light), 1e-12))
         col = day_col * w + night_col * (1.0 - w)
         return (lum[:, None] * col).astype(np.float32)
+
+    @staticmethod
+    def _night(light: SkyLight) -> float:
+        """Natural night sky plus the artificial part (SkyLight.light_pollution_mag_arcsec2), cd/m^2."""
+        art = light.light_pollution_mag_arcsec2
+        return float(mag_arcsec2_to_cd_m2(NIGHT_MAG_ARCSEC2) + (mag_arcsec2_to_cd_m2(art) if art else 0.0))
 
     _ref_cache: dict = {}
 

@@ -16,7 +16,7 @@ from domegen.render.frame import check_memory, render_frame
 from domegen.render.spec import CameraSpec, FrameSpec, LayerSpec
 from domegen.sky.site import Site
 
-NANTES_ARGS = ["--lat", "47.2184", "--lon", "-1.5536", "--elev", "20"]
+NANTES_ARGS = ["--lat", "47.2184", "--lon", "-1.5536", "--elev", "20", "--tz", "Europe/Paris"]
 
 
 def test_still_json_lists_bodies_with_pixel_positions(tmp_path, capsys):
