@@ -11,7 +11,7 @@ from ..sky_model import SkyLight
 from . import night, spectrum
 from .extinction import transmittance_rgb, v_extinction
 from .medium import Atmosphere
-from .scatter import SUN_ALT_GRID, marched_xyz, scattered_xyz, site_table
+from .scatter import SUN_ALT_GRID, eclipse_xyz, scattered_xyz, site_table
 
 #: Site heights are rounded to this step (m) to share one table per venue.
 HEIGHT_STEP_M = 100.0
@@ -77,7 +77,8 @@ class PhysicalSky:
                 xyz += scattered_xyz(site_table(self.atmosphere, h), dirs, light.sun_enu) * np.float32(
                     light.sun_visible_fraction)
             else:
-                xyz += marched_xyz(self.atmosphere, h, dirs, light.sun_enu, light.shadow, self.march_steps)
+                xyz += eclipse_xyz(site_table(self.atmosphere, h), dirs, light.sun_enu, light.shadow,
+                                   self.march_steps)
         if light.moon_enu is not None and light.moon_alt_deg > SUN_ALT_GRID[0] and light.moon_illuminance_lux > 0:
             scale = np.float32(light.moon_illuminance_lux / spectrum.SOLAR_ILLUMINANCE_LUX)
             xyz += scattered_xyz(site_table(self.atmosphere, h), dirs, light.moon_enu) * scale
