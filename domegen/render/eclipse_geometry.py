@@ -194,25 +194,6 @@ def shadow_function(geom: DiskGeometry, index: int = 0):
     return shadow
 
 
-def tangent_coords(dirs_enu, center_enu):
-    """Gnomonic coordinates (u, v), radians, of directions (3, ...) about a centre (3,).
-
-    u points toward increasing azimuth-like axis e1 = z x c (east-ish), v completes (c, e1, v).
-    Directions more than 90 deg from the centre get NaN.
-    """
-    c = np.asarray(center_enu, dtype=float)
-    c = c / np.linalg.norm(c)
-    ref = np.array([0.0, 0.0, 1.0]) if abs(c[2]) < 0.999 else np.array([0.0, 1.0, 0.0])
-    e1 = np.cross(ref, c)
-    e1 /= np.linalg.norm(e1)
-    e2 = np.cross(c, e1)
-    d = np.asarray(dirs_enu, dtype=float)
-    w = np.tensordot(c, d, axes=(0, 0))
-    with np.errstate(invalid="ignore", divide="ignore"):
-        w = np.where(w > 1e-9, w, np.nan)
-        return np.tensordot(e1, d, axes=(0, 0)) / w, np.tensordot(e2, d, axes=(0, 0)) / w
-
-
 def geometry_from_bodies(bodies) -> DiskGeometry:
     """DiskGeometry for every instant of a BodyTable that holds the Sun and the Moon."""
     s, m = bodies.index("Sun"), bodies.index("Moon")
