@@ -8,6 +8,7 @@ domegen.maps.raster.Canvas.  The subsolar point comes from the DE421 ephemeris
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from datetime import datetime
 
@@ -51,17 +52,14 @@ def sun_altitude_deg(lat_deg, lon_deg, subsolar) -> np.ndarray:
 
 
 def _sun_cos_zenith(proj, subsolar) -> np.ndarray:
-    """(H, W) float32 cosine of the Sun's zenith distance at each pixel (sphere)."""
+    """(H, W) float32 cosine of the Sun's zenith distance (sphere), interpolated from a coarse grid."""
+    from domegen.maps.projection import coarse_samples, upsample
+
+    xs, ys, lat, lon = coarse_samples(proj, 8)
+    la, lo = np.radians(lat), np.radians(lon)
     sla, slo = np.radians(subsolar[0]), np.radians(subsolar[1])
-    if proj.kind == "equirectangular":
-        lat, lon = proj.grid()
-        la = np.radians(lat[:, :1]).astype(np.float32)
-        lo = np.radians(lon[:1, :]).astype(np.float32)
-        return (np.sin(la) * np.float32(np.sin(sla))
-                + np.cos(la) * np.float32(np.cos(sla)) * np.cos(lo - np.float32(slo)))
-    s = np.array([np.cos(sla) * np.cos(slo), np.cos(sla) * np.sin(slo), np.sin(sla)], np.float32)
-    v = proj.grid_vectors()
-    return np.nan_to_num(v.astype(np.float32) @ s)
+    c = np.sin(la) * np.sin(sla) + np.cos(la) * np.cos(sla) * np.cos(lo - slo)
+    return upsample(c, xs, ys, proj.width_px, proj.height_px)
 
 
 def land_fraction_for(proj) -> np.ndarray:
@@ -74,8 +72,9 @@ def land_fraction_for(proj) -> np.ndarray:
                     ).astype(np.float32)
 
 
-def surface_rgb(proj, palette: Palette = DEFAULT) -> np.ndarray:
-    """(H, W, 3) float32 land/sea colours; polar land shades to ice white."""
+@functools.lru_cache(maxsize=2)
+def surface_planes(proj, palette: Palette = DEFAULT) -> np.ndarray:
+    """(3, H, W) float32 land/sea colour planes (read-only, cached per projection); polar land is icy."""
     land = land_fraction_for(proj)
     lat, _ = proj.grid()
     if proj.kind == "equirectangular":
@@ -85,11 +84,19 @@ def surface_rgb(proj, palette: Palette = DEFAULT) -> np.ndarray:
     sea = np.asarray(palette.sea[:3], np.float32)
     land_lo = np.asarray(palette.land[:3], np.float32)
     land_hi = np.asarray(palette.land_high_lat[:3], np.float32)
-    out = np.empty(land.shape + (3,), dtype=np.float32)
+    land = np.ascontiguousarray(land, dtype=np.float32)
+    out = np.empty((3,) + land.shape, dtype=np.float32)
     for ch in range(3):
         lc = land_lo[ch] + (land_hi[ch] - land_lo[ch]) * polar
-        out[..., ch] = sea[ch] + (lc - sea[ch]) * land
+        np.multiply(land, (lc - sea[ch]).astype(np.float32), out=out[ch])
+        out[ch] += sea[ch]
+    out.setflags(write=False)
     return out
+
+
+def surface_rgb(proj, palette: Palette = DEFAULT) -> np.ndarray:
+    """(H, W, 3) float32 land/sea colours."""
+    return np.moveaxis(surface_planes(proj, palette), 0, -1)
 
 
 def night_alpha(proj, utc) -> np.ndarray:
@@ -101,15 +108,28 @@ def night_alpha(proj, utc) -> np.ndarray:
 
 
 def draw_base(canvas, proj, utc=None, palette: Palette = DEFAULT) -> None:
-    """Land and sea, darkened on the night side when ``utc`` is given (one pass)."""
-    rgb = surface_rgb(proj, palette)
+    """Land and sea, darkened on the night side when ``utc`` is given (one pass per channel)."""
+    planes = surface_planes(proj, palette)
+    disc = proj.disc_coverage() if proj.kind == "orthographic" else None
+    keep = mix = None
     if utc is not None:
-        a = night_alpha(proj, utc) * np.float32(palette.night[3])
-        col = np.asarray(palette.night[:3], np.float32)
-        for ch in range(3):
-            rgb[..., ch] += (col[ch] - rgb[..., ch]) * a
-    alpha = proj.disc_coverage() if proj.kind == "orthographic" else 1.0
-    canvas.composite_image(rgb, alpha)
+        mix = night_alpha(proj, utc)
+        mix *= np.float32(palette.night[3])
+        keep = np.float32(1.0) - mix
+    col = np.asarray(palette.night[:3], np.float32)
+    tmp = np.empty(planes.shape[1:], dtype=np.float32)
+    for ch in range(3):
+        dst = canvas.rgba[..., ch]
+        if keep is not None:
+            np.multiply(planes[ch], keep, out=dst)
+            np.multiply(mix, col[ch], out=tmp)
+            dst += tmp
+        else:
+            dst[...] = planes[ch]
+        if disc is not None:
+            dst *= disc  # premultiplied by the limb coverage
+    canvas.rgba[..., 3] = 1.0 if disc is None else disc
+    canvas._blank = False
 
 
 def draw_graticule(canvas, proj, step_deg: float = 15.0, palette: Palette = DEFAULT) -> None:

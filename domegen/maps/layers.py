@@ -129,39 +129,61 @@ def draw_path(canvas, proj, path, palette: Palette = DEFAULT, label_px: int = 11
 
 
 # -- the shadow at one instant ------------------------------------------------------
-def _edge_coverage(f: np.ndarray) -> np.ndarray:
-    """Anti-aliased coverage of {f > 0} from a smooth field sampled at pixel centres."""
-    gy, gx = np.gradient(f)
-    g = np.hypot(gx, gy)
-    g = np.where(np.isfinite(g) & (g > 0), g, np.inf)
-    return np.clip(0.5 + f / g, 0.0, 1.0)
+def shadow_coverage(proj, eclipse, utc_s: float, step: int = 4) -> dict:
+    """Anti-aliased coverage of the penumbra and umbra on the day side, in image windows.
 
-
-def surface_points(proj) -> np.ndarray:
-    """(H, W, 3) Earth-fixed sea-level points (Earth radii) of every pixel (NaN off a globe)."""
-    lat, lon = proj.grid()
-    return shadow.ecef_points(lat, lon)
-
-
-def draw_shadow(canvas, proj, eclipse, utc_s: float, palette: Palette = DEFAULT,
-                points: np.ndarray | None = None) -> dict:
-    """Penumbra darkened by obscuration and the umbra filled, both anti-aliased, with outlines.
-
-    Returns the shadow quantities (see :func:`domegen.maps.shadow.shadow_at`).
+    The smooth fields L1' - m, |L2'| - m and zeta (see
+    :func:`domegen.maps.shadow.shadow_at`) are evaluated at the ellipsoid
+    point of every ``step``-th pixel; each is turned into a signed distance in
+    pixels (f / |grad f|), interpolated bilinearly and mapped to coverage
+    0.5 + distance, so outlines keep their true shape to a small fraction of a
+    pixel.  Returns {"penumbra": (cov, y0, x0) or None, "umbra": ..., } with
+    the penumbra coverage already weighted by 0.25 + 0.75 obscuration^0.7.
     """
-    pts = surface_points(proj) if points is None else points
-    s = shadow.shadow_at(eclipse, utc_s, pts)
-    day = np.nan_to_num(s["zeta"]) > 0
-    disc = proj.disc_coverage() if proj.kind == "orthographic" else 1.0
-    f1 = np.where(day, s["L1"] - s["m"], -1.0)
-    cov_p = _edge_coverage(np.nan_to_num(f1, nan=-1.0)) * disc
-    shade = palette.penumbra_shade
-    alpha = (cov_p * (0.25 + 0.75 * np.clip(s["obscuration"], 0, 1) ** 0.7)).astype(np.float32)
-    canvas.composite(alpha, shade[:3] + (shade[3],))
-    f2 = np.where(day, np.abs(s["L2"]) - s["m"], -1.0)
-    if (f2 > -0.05).any():
-        cov_u = (_edge_coverage(np.nan_to_num(f2, nan=-1.0)) * disc).astype(np.float32)
-        canvas.composite(cov_u, palette.umbra)
+    from domegen.maps.projection import coarse_samples, upsample
+
+    xs, ys, lat, lon = coarse_samples(proj, step)
+    s = shadow.shadow_at(eclipse, utc_s, shadow.ecef_points(lat, lon))
+
+    def dist(f):
+        gy, gx = np.gradient(f, ys, xs)
+        return f / np.maximum(np.hypot(gx, gy), 1e-12)
+
+    d_day = dist(s["zeta"])
+    out = {}
+    for name, f in (("penumbra", s["L1"] - s["m"]), ("umbra", np.abs(s["L2"]) - s["m"])):
+        d = dist(f)
+        near = (d > -2.0 * step) & (d_day > -2.0 * step)
+        if not near.any():
+            out[name] = None
+            continue
+        rr, cc = np.nonzero(near)
+        r0, r1 = max(rr.min() - 1, 0), min(rr.max() + 2, ys.size)
+        c0, c1 = max(cc.min() - 1, 0), min(cc.max() + 2, xs.size)
+        wx, wy = xs[c0:c1], ys[r0:r1]
+        x0, x1 = int(np.floor(wx[0])), int(np.ceil(wx[-1]))
+        y0, y1 = int(np.floor(wy[0])), int(np.ceil(wy[-1]))
+
+        def up(field):
+            return upsample(field[r0:r1, c0:c1], wx - x0, wy - y0, x1 - x0, y1 - y0)
+
+        cov = np.clip(0.5 + up(d), 0.0, 1.0) * np.clip(0.5 + up(d_day), 0.0, 1.0)
+        if name == "penumbra":
+            obsc = np.clip(up(s["obscuration"]), 0.0, 1.0)
+            cov *= np.float32(0.25) + np.float32(0.75) * obsc ** np.float32(0.7)
+        if proj.kind == "orthographic":
+            cov *= proj.disc_coverage()[y0:y1, x0:x1]
+        out[name] = (cov.astype(np.float32), y0, x0)
+    return out
+
+
+def draw_shadow(canvas, proj, eclipse, utc_s: float, palette: Palette = DEFAULT) -> dict:
+    """Penumbra darkened by obscuration and the umbra filled, both anti-aliased, with outlines."""
+    cov = shadow_coverage(proj, eclipse, utc_s)
+    if cov["penumbra"] is not None:
+        canvas.composite(cov["penumbra"][0], palette.penumbra_shade, *cov["penumbra"][1:])
+    if cov["umbra"] is not None:
+        canvas.composite(cov["umbra"][0], palette.umbra, *cov["umbra"][1:])
     for which, st in (("penumbra", palette.penumbra_edge), ("umbra", palette.umbra_edge)):
         o = shadow.outline(eclipse, utc_s, which, 720)
         if o is None:
@@ -171,4 +193,4 @@ def draw_shadow(canvas, proj, eclipse, utc_s: float, palette: Palette = DEFAULT,
         # Only the shadow's own edge, not the stretch moved onto the limb.
         p = proj.polyline(np.where(onc, np.r_[lat, lat[:1]], np.nan), np.r_[lon, lon[:1]])
         canvas.stroke([p], st.colour, st.width_px, st.dash_px)
-    return s
+    return cov

@@ -179,11 +179,8 @@ class Orthographic:
         return [np.c_[c + self.radius_px * e, c - self.radius_px * n]]
 
     def disc_coverage(self) -> np.ndarray:
-        """(H, W) anti-aliased coverage of the globe disc."""
-        c = 0.5 * self.size_px
-        yy, xx = np.mgrid[0:self.size_px, 0:self.size_px].astype(np.float32) + 0.5
-        d = np.hypot(xx - c, yy - c)
-        return np.clip(self.radius_px + 0.5 - d, 0.0, 1.0).astype(np.float32)
+        """(H, W) float32 anti-aliased coverage of the globe disc (read-only, cached)."""
+        return _disc(self.size_px, float(self.radius_px))
 
 
 @functools.lru_cache(maxsize=8)
@@ -217,3 +214,56 @@ def _ortho_latlon(size, lat0, lon0, frac):
     lat.setflags(write=False)
     lon.setflags(write=False)
     return lat, lon
+
+
+def coarse_samples(proj, step: int = 4):
+    """Coarse sample positions covering the image and their geodetic lat/lon.
+
+    Returns xs (Wc,), ys (Hc,) pixel coordinates (first and last pixel centres
+    included) and lat, lon (Hc, Wc).  On a globe, samples beyond the limb take
+    the limb point below them, so smooth fields stay continuous there.
+    """
+    w, h = proj.width_px, proj.height_px
+    xs = np.linspace(0.5, w - 0.5, max(2, int(np.ceil(w / step)) + 1))
+    ys = np.linspace(0.5, h - 0.5, max(2, int(np.ceil(h / step)) + 1))
+    if proj.kind == "equirectangular":
+        lon = proj.lon0_deg - 180.0 + xs / w * 360.0
+        lat = 90.0 - ys / h * 180.0
+        lat2, lon2 = np.meshgrid(lat, lon, indexing="ij")
+        return xs, ys, lat2, ((lon2 + 180.0) % 360.0) - 180.0
+    c = 0.5 * proj.size_px
+    e = (xs[None, :] - c) / proj.radius_px
+    n = -(ys[:, None] - c) / proj.radius_px
+    e, n = np.broadcast_arrays(e, n)
+    r = np.hypot(e, n)
+    scale = np.where(r > 1.0, 1.0 / np.maximum(r, 1e-12), 1.0)
+    e, n = e * scale, n * scale
+    u = np.sqrt(np.clip(1.0 - e * e - n * n, 0.0, 1.0))
+    v = np.stack([e, n, u], axis=-1) @ proj.basis()
+    lat, lon = direction_to_geodetic(v)
+    return xs, ys, lat, lon
+
+
+def upsample(field: np.ndarray, xs: np.ndarray, ys: np.ndarray, width: int, height: int) -> np.ndarray:
+    """Bilinear (H, W) float32 image of a coarse field sampled at (ys, xs) pixel coordinates."""
+    f = np.asarray(field, dtype=np.float32)
+
+    def weights(coords, n_out):
+        x = np.arange(n_out) + 0.5
+        u = np.interp(x, coords, np.arange(coords.size))
+        i0 = np.minimum(np.floor(u).astype(np.int64), coords.size - 2)
+        return i0, (u - i0).astype(np.float32)
+
+    r0, fr = weights(ys, height)
+    c0, fc = weights(xs, width)
+    rows = f[r0] * (1 - fr)[:, None] + f[r0 + 1] * fr[:, None]  # (H, Wc)
+    return rows[:, c0] * (1 - fc)[None, :] + rows[:, c0 + 1] * fc[None, :]
+
+
+@functools.lru_cache(maxsize=4)
+def _disc(size, radius):
+    s = np.arange(size, dtype=np.float32) + np.float32(0.5 - 0.5 * size)
+    d = np.sqrt(s[:, None] ** 2 + s[None, :] ** 2)
+    out = np.clip(np.float32(radius + 0.5) - d, 0.0, 1.0).astype(np.float32)
+    out.setflags(write=False)
+    return out

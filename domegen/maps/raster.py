@@ -46,6 +46,7 @@ class Canvas:
         self.height = int(height_px)
         self.rgba = np.zeros((self.height, self.width, 4), dtype=np.float32)
         self.labels: list[Label] = []
+        self._blank = background is None
         if background is not None:
             self.rgba[...] = _premul(background)
 
@@ -58,6 +59,7 @@ class Canvas:
         """Paint ``colour`` over flat pixel indices ``idx`` (unique) with ``coverage``."""
         if idx.size == 0:
             return
+        self._blank = False
         src = _premul(colour)
         a = coverage.astype(np.float32, copy=False)[:, None] * src[3]
         px = self.flat[idx]
@@ -72,6 +74,7 @@ class Canvas:
             return
         rr, cc = np.nonzero(coverage > 0)
         if rr.size > 0.5 * coverage.size:  # dense: whole-window arithmetic
+            self._blank = False
             src = _premul(colour)
             a = (coverage.astype(np.float32, copy=False) * src[3])[..., None]
             win = self.rgba[y0:y0 + h, x0:x0 + w]
@@ -86,6 +89,12 @@ class Canvas:
         if a.ndim == 0 and float(a) >= 1.0:
             self.rgba[..., :3] = rgb
             self.rgba[..., 3] = 1.0
+            self._blank = False
+            return
+        if self._blank:  # nothing below: premultiplied colour is rgb * alpha
+            np.multiply(rgb, a[..., None] if a.ndim == 2 else a, out=self.rgba[..., :3])
+            self.rgba[..., 3] = a
+            self._blank = False
             return
         if a.ndim == 2:
             a = a[..., None]
@@ -103,18 +112,17 @@ class Canvas:
 
     def stroke(self, polylines, colour, width_px: float = 1.0, dash_px=None) -> None:
         """Stroke polylines ((N, 2) x, y arrays; NaN rows break a line) anti-aliased."""
-        lines = [p for q in polylines for p in split_nan(np.asarray(q, dtype=np.float64))]
+        a, b = segments(polylines)
         if dash_px:
-            lines = [d for p in lines for d in dash(p, dash_px)]
-        idx, cov = stroke_coverage(lines, self.width, self.height, width_px)
+            a, b = dash_segments(a, b, dash_px)
+        idx, cov = segment_coverage(a, b, self.width, self.height, width_px)
         self.composite_sparse(idx, cov, colour)
 
     def dots(self, xy: np.ndarray, colour, radius_px: float) -> None:
         """Filled anti-aliased discs at (M, 2) pixel positions."""
         xy = np.asarray(xy, dtype=np.float64).reshape(-1, 2)
         if len(xy):
-            lines = [np.repeat(p[None], 2, axis=0) for p in xy]
-            idx, cov = stroke_coverage(lines, self.width, self.height, 2 * radius_px)
+            idx, cov = segment_coverage(xy, xy, self.width, self.height, 2 * radius_px)
             self.composite_sparse(idx, cov, colour)
 
     def label(self, x, y, text, colour=(1, 1, 1, 1), size_px=12, anchor="lm", halo=(0, 0, 0, 0.6)):
@@ -157,7 +165,7 @@ class Canvas:
         from domegen.cache import atomic_write_bytes
 
         buf = io.BytesIO()
-        self.to_image().save(buf, format="PNG", optimize=False, compress_level=3)
+        self.to_image().save(buf, format="PNG", optimize=False, compress_level=2)
         atomic_write_bytes(path, buf.getvalue())
 
 
@@ -201,48 +209,69 @@ def split_nan(p: np.ndarray) -> list[np.ndarray]:
     return [q[1:] if i else q for i, q in enumerate(pieces) if len(q[1:] if i else q)]
 
 
-def dash(p: np.ndarray, pattern_px) -> list[np.ndarray]:
-    """Cut a polyline into dashes: pattern_px = (on, off) lengths in pixels."""
-    on, off = float(pattern_px[0]), float(pattern_px[1])
-    if len(p) < 2:
-        return [p]
-    s = np.concatenate([[0.0], np.cumsum(np.hypot(*np.diff(p, axis=0).T))])
-    total = s[-1]
-    starts = np.arange(0.0, total, on + off)
-    out = []
-    for a in starts:
-        b = min(a + on, total)
-        inner = (s > a) & (s < b)
-        pts = np.vstack([_at(p, s, a), p[inner], _at(p, s, b)])
-        out.append(pts)
-    return out
+def segments(polylines):
+    """All drawable segments (a, b), each (S, 2), of polylines whose NaN rows break them.
 
-
-def _at(p, s, t):
-    return np.array([[np.interp(t, s, p[:, 0]), np.interp(t, s, p[:, 1])]])
-
-
-def _subdivide(lines, max_len: float):
-    """All segments of all polylines, each at most max_len long: (S, 2), (S, 2)."""
-    a_all, b_all = [], []
-    for p in lines:
-        if len(p) == 1:
-            p = np.repeat(p, 2, axis=0)
-        a, b = p[:-1], p[1:]
-        n = np.maximum(1, np.ceil(np.hypot(*(b - a).T) / max_len)).astype(np.int64)
-        seg = np.repeat(np.arange(len(a)), n)
-        k = np.arange(n.sum()) - np.repeat(np.cumsum(n) - n, n)
-        t0 = (k / n[seg])[:, None]
-        t1 = ((k + 1) / n[seg])[:, None]
-        a_all.append(a[seg] + (b[seg] - a[seg]) * t0)
-        b_all.append(a[seg] + (b[seg] - a[seg]) * t1)
-    if not a_all:
+    A polyline's piece of a single point becomes a zero-length segment (a dot).
+    """
+    arrs = [np.asarray(q, dtype=np.float64).reshape(-1, 2) for q in polylines]
+    arrs = [q for q in arrs if len(q)]
+    if not arrs:
         return np.zeros((0, 2)), np.zeros((0, 2))
-    return np.concatenate(a_all), np.concatenate(b_all)
+    gap = np.full((1, 2), np.nan)
+    p = np.concatenate([x for q in arrs for x in (q, gap)])
+    fin = np.isfinite(p).all(axis=1)
+    ok = fin[:-1] & fin[1:]
+    a, b = p[:-1][ok], p[1:][ok]
+    # isolated finite points (no finite neighbour) are dots
+    prev = np.r_[False, fin[:-1]]
+    nxt = np.r_[fin[1:], False]
+    lone = fin & ~prev & ~nxt
+    if lone.any():
+        a = np.concatenate([a, p[lone]])
+        b = np.concatenate([b, p[lone]])
+    return a, b
+
+
+def dash_segments(a, b, pattern_px):
+    """Keep the parts of consecutive segments that fall on the dashes of (on, off) pixels.
+
+    Arc length runs on across connected segments and restarts where a line breaks.
+    """
+    on, off = float(pattern_px[0]), float(pattern_px[1])
+    if len(a) == 0:
+        return a, b
+    a, b = _subdivide_segments(a, b, max(0.5, min(on, off) / 4.0))
+    length = np.hypot(*(b - a).T)
+    start_piece = np.r_[True, np.any(np.abs(a[1:] - b[:-1]) > 1e-9, axis=1)]
+    cum = np.cumsum(length)
+    base = np.maximum.accumulate(np.where(start_piece, cum - length, 0.0))
+    mid = cum - base - 0.5 * length
+    keep = (mid % (on + off)) < on
+    return a[keep], b[keep]
+
+
+def _subdivide_segments(a, b, max_len: float):
+    """Split segments so none is longer than max_len: (S', 2), (S', 2)."""
+    n = np.maximum(1, np.ceil(np.hypot(*(b - a).T) / max_len)).astype(np.int64)
+    if (n == 1).all():
+        return a, b
+    seg = np.repeat(np.arange(len(a)), n)
+    k = np.arange(n.sum()) - np.repeat(np.cumsum(n) - n, n)
+    t0 = (k / n[seg])[:, None]
+    t1 = ((k + 1) / n[seg])[:, None]
+    d = b[seg] - a[seg]
+    return a[seg] + d * t0, a[seg] + d * t1
 
 
 def stroke_coverage(lines, width: int, height: int, width_px: float):
-    """Sparse coverage for stroking ``lines``: unique flat pixel indices and coverage 0..1.
+    """Sparse coverage for stroking polylines: see :func:`segment_coverage`."""
+    a, b = segments(lines)
+    return segment_coverage(a, b, width, height, width_px)
+
+
+def segment_coverage(a, b, width: int, height: int, width_px: float):
+    """Sparse coverage for stroking segments a-b: unique flat pixel indices and coverage 0..1.
 
     Each segment (at most 16 px long) is visited over a thin window aligned with
     its major axis; the distance of every pixel centre to the segment gives a
@@ -252,7 +281,7 @@ def stroke_coverage(lines, width: int, height: int, width_px: float):
     fade = min(float(width_px), 1.0)
     half = 0.5 * w_eff
     reach = half + 0.5
-    a, b = _subdivide(lines, 16.0)
+    a, b = _subdivide_segments(np.asarray(a, dtype=np.float64), np.asarray(b, dtype=np.float64), 16.0)
     if len(a) == 0:
         return _EMPTY
     lo = np.minimum(a, b) - reach

@@ -105,13 +105,6 @@ def render_globe(eclipse, size_px: int = 1024, *, centre=None, utc=None, overlay
     return _globe_canvas(eclipse, proj, _utc_s(utc), overlay_only, sites, shadow_at_utc, path, palette)
 
 
-@functools.lru_cache(maxsize=2)
-def _globe_points(proj: Orthographic) -> np.ndarray:
-    pts = layers.surface_points(proj)
-    pts.setflags(write=False)
-    return pts
-
-
 def _globe_canvas(eclipse, proj, utc_s, overlay_only, sites, with_shadow, path, palette,
                   stamp: str | None = None) -> Canvas:
     canvas = Canvas(proj.width_px, proj.height_px)
@@ -124,7 +117,7 @@ def _globe_canvas(eclipse, proj, utc_s, overlay_only, sites, with_shadow, path, 
         layers.draw_limits(canvas, proj, path, palette)
         layers.draw_central_line(canvas, proj, path, palette, label_every=0)
     if with_shadow:
-        layers.draw_shadow(canvas, proj, eclipse, utc_s, palette, points=_globe_points(proj))
+        layers.draw_shadow(canvas, proj, eclipse, utc_s, palette)
     if not overlay_only:
         basemap.draw_terminator(canvas, proj, utc_s, palette)
         basemap.draw_limb(canvas, proj, palette)
