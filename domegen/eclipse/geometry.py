@@ -62,17 +62,12 @@ def site_to_plane(rcos, rsin, lon_deg, d_deg, theta_deg, dmu_deg_h, dd_deg_h):
     return xi, eta, zeta, dxi, deta
 
 
-def surface_point(xi, eta, d_deg, theta_deg, *, on_limb: bool = False):
-    """Ground point (sea level) under plane point (xi, eta) on the sunward side.
+def plane_zeta(xi, eta, sd, cd, *, on_limb: bool = False):
+    """zeta of the sunward ground point under plane point (xi, eta); (zeta, valid).
 
-    Returns (lat_deg, lon_deg, zeta, valid); lat/lon are NaN where the point
-    misses the Earth.  ``on_limb`` accepts points a hair outside the outline
-    (they are put on it, zeta = 0).
+    ``sd``, ``cd``: sine and cosine of d.  ``on_limb`` accepts points a hair
+    outside the outline (they are put on it, zeta = 0).
     """
-    xi = np.asarray(xi, dtype=float)
-    eta = np.asarray(eta, dtype=float)
-    d = np.radians(d_deg)
-    sd, cd = np.sin(d), np.cos(d)
     ea = EARTH_E2 / (1.0 - EARTH_E2)
     qa = 1.0 + ea * sd * sd
     qb = 2.0 * ea * eta * cd * sd
@@ -81,7 +76,20 @@ def surface_point(xi, eta, d_deg, theta_deg, *, on_limb: bool = False):
     if on_limb:
         disc = np.where(disc > -1e-4, np.maximum(disc, 0.0), disc)
     valid = disc >= 0.0
-    zeta = (-qb + np.sqrt(np.where(valid, disc, 0.0))) / (2.0 * qa)
+    return (-qb + np.sqrt(np.where(valid, disc, 0.0))) / (2.0 * qa), valid
+
+
+def surface_point(xi, eta, d_deg, theta_deg, *, on_limb: bool = False):
+    """Ground point (sea level) under plane point (xi, eta) on the sunward side.
+
+    Returns (lat_deg, lon_deg, zeta, valid); lat/lon are NaN where the point
+    misses the Earth.  ``on_limb`` as in :func:`plane_zeta`.
+    """
+    xi = np.asarray(xi, dtype=float)
+    eta = np.asarray(eta, dtype=float)
+    d = np.radians(d_deg)
+    sd, cd = np.sin(d), np.cos(d)
+    zeta, valid = plane_zeta(xi, eta, sd, cd, on_limb=on_limb)
     lam = -np.radians(theta_deg)
     sl, cl = np.sin(lam), np.cos(lam)
     # p = xi i + eta j + zeta k with the axes of :func:`axes`, written out (no temporaries).

@@ -129,7 +129,7 @@ def _trace(func, t: np.ndarray):
     if edges.size:
         inside = np.where(ok[edges], t[edges], t[edges + 1])
         outside = np.where(ok[edges], t[edges + 1], t[edges])
-        for _ in range(16):
+        for _ in range(13):
             mid = 0.5 * (inside + outside)
             la, _, v = func(mid)
             v = np.asarray(v, dtype=bool) & np.isfinite(la)
@@ -171,7 +171,7 @@ def _bend_deg(lat, lon) -> np.ndarray:
     return turn
 
 
-def _limb_roots(b, t: np.ndarray, func, samples: int = 1440):
+def _limb_roots(b, t: np.ndarray, func, samples: int = 720):
     """Points of the Earth's limb (Sun on the horizon) where ``func`` changes sign, at every time.
 
     ``func(e, xi, eta)`` is evaluated on (T, samples) grids of limb points.  Returns the root

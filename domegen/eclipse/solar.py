@@ -117,22 +117,27 @@ def central_point(b: BesselianElements, t_h, delta_t_s: float | None = None):
 
 
 def limit_points(b: BesselianElements, t_h, side: int, radius: str = "umbra",
-                 magnitude: float | None = None, delta_t_s: float | None = None, iterations: int = 4):
+                 magnitude: float | None = None, delta_t_s: float | None = None, iterations: int = 8,
+                 secant: bool = True):
     """Ground points whose local maximum is at ``t_h`` and whose axis distance is the shadow radius.
 
     ``side`` +1 is left of the shadow's motion (north for the usual eastward
     track), -1 right.  ``radius`` "umbra" uses |L2'|, "penumbra" L1', and
-    with ``magnitude`` G the distance L1' - G (L1' + L2').  Returns (lat, lon,
-    zeta, valid) arrays.
+    with ``magnitude`` G the distance L1' - G (L1' + L2').  The point lies at
+    that distance from the axis in the direction psi perpendicular to its own
+    motion relative to the shadow (u a + v b = 0).  psi is a fixed point of
+    "perpendicular to the motion of the point at psi", solved by secant
+    steps on the residual (plain fixed-point steps with ``secant=False``).
+    Returns (lat, lon, zeta, valid) arrays.
     """
     t = np.asarray(t_h, dtype=float)
     e = b.at(t)
     th = theta_deg(b, e, delta_t_s)
-    zeta = np.sqrt(np.clip(1.0 - e["x"] ** 2 - e["y"] ** 2, 0.0, 1.0))
-    xi, eta = e["x"], e["y"]
-    valid = np.ones(t.shape, dtype=bool)
-    lat = lon = np.full(t.shape, np.nan)
-    for _ in range(iterations):
+    d = np.radians(e["d"])
+    sd, cd = np.sin(d), np.cos(d)
+    mu1, d1 = np.radians(e["dmu"]), np.radians(e["dd"])
+
+    def point(psi, zeta):
         l1p = e["l1"] - zeta * b.tan_f1
         l2p = e["l2"] - zeta * b.tan_f2
         if magnitude is not None:
@@ -141,14 +146,35 @@ def limit_points(b: BesselianElements, t_h, side: int, radius: str = "umbra",
             dist = np.abs(l2p)
         else:
             dist = l1p
-        dxi, deta = _point_rates(e, xi, eta, zeta)
-        a = e["dx"] - dxi
-        bb = e["dy"] - deta
-        n = np.hypot(a, bb)
-        xi = e["x"] + side * dist * (-bb) / n
-        eta = e["y"] + side * dist * a / n
-        lat, lon, zeta_new, valid = geo.surface_point(xi, eta, e["d"], th)
-        zeta = np.where(valid, zeta_new, 0.0)
+        xi = e["x"] + dist * np.cos(psi)
+        eta = e["y"] + dist * np.sin(psi)
+        z, valid = geo.plane_zeta(xi, eta, sd, cd)
+        return xi, eta, np.where(valid, z, 0.0)
+
+    def perpendicular(xi, eta, zeta):
+        # Velocity of the ground point in the plane (as _point_rates), then the normal on ``side``.
+        dxi = mu1 * (zeta * cd - eta * sd)
+        deta = mu1 * xi * sd - zeta * d1
+        return np.arctan2(side * (e["dx"] - dxi), -side * (e["dy"] - deta))
+
+    def wrap(a):
+        return (a + np.pi) % (2.0 * np.pi) - np.pi
+
+    zeta = np.sqrt(np.clip(1.0 - e["x"] ** 2 - e["y"] ** 2, 0.0, 1.0))
+    psi0 = perpendicular(e["x"], e["y"], zeta)
+    xi, eta, zeta = point(psi0, zeta)
+    r0 = wrap(perpendicular(xi, eta, zeta) - psi0)
+    psi1 = psi0 + r0
+    for _ in range(iterations):
+        xi, eta, zeta = point(psi1, zeta)
+        r1 = wrap(perpendicular(xi, eta, zeta) - psi1)
+        denom = r1 - r0
+        use = secant & (np.abs(denom) > 1e-14)
+        step = np.where(use, -r1 * (psi1 - psi0) / np.where(use, denom, 1.0), r1)
+        psi0, r0 = psi1, r1
+        psi1 = psi1 + np.clip(step, -0.3, 0.3)
+    xi, eta, zeta = point(psi1, zeta)
+    lat, lon, zeta, valid = geo.surface_point(xi, eta, e["d"], th)
     return lat, lon, zeta, valid
 
 
