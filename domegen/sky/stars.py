@@ -26,13 +26,18 @@ B-V colour.  V = Hp + (V - Hp), with V - Hp read from Bessell (2000, PASP
 112, 961, Table 2) as a function of Johnson B-V (his B_T-V_T grid plus his
 Delta(B-V) column gives B-V).  The table holds for B-G main-sequence stars
 and K-M giants, B-V from about -0.25 to 1.7; outside it the end values
-are kept.  Stars without B-V get V = Hp.
+are kept.  Stars without B-V get V = Hp.  The two stars with Hp < 0,
+Sirius and Canopus, have Hp about 0.37 and 0.17 mag fainter than their
+V (the relation does not hold there); they take their Johnson V from the
+Yale Bright Star Catalogue, 5th ed. (Hoffleit & Warren 1991): -1.46 and
+-0.72 (values from memory, see :data:`V_OVERRIDES`).
 """
 
 from __future__ import annotations
 
 import functools
 import io
+import numbers
 import zipfile
 from dataclasses import dataclass
 from datetime import datetime
@@ -43,7 +48,7 @@ from domegen.cache import atomic_write_bytes, cache_dir
 from domegen.errors import InputError
 
 #: Bump when the cached columns or their meaning change.
-CACHE_FORMAT = 1
+CACHE_FORMAT = 2
 CACHE_NAME = f"hip2-columns-v{CACHE_FORMAT}.npz"
 
 #: Catalogue epoch J1991.25 as a TT Julian date.
@@ -82,6 +87,10 @@ _BESSELL_VHP_MMAG = (
     -166, -165, -164, -161, -157, -153, -148, -143, -137, -131, -125, -119, -112, -106)
 
 
+#: Johnson V for stars whose Hp cannot be converted (HIP -> V; Yale BSC 5th ed., from memory).
+V_OVERRIDES = {32349: -1.46, 30438: -0.72}
+
+
 def v_minus_hp(bv) -> np.ndarray:
     """Johnson V minus Hipparcos Hp (mag) for Johnson B-V (Bessell 2000, Table 2).
 
@@ -102,7 +111,7 @@ def _fixed_field(rows: np.ndarray, first: int, last: int, decimals: int) -> np.n
 
     ``rows`` is (N, line) uint8.  Fortran F formats put the decimal point at
     a fixed byte, so each byte has a fixed power of ten; the digits are
-    summed as one exact int64 mantissa and scaled once.
+    summed as one exact integer mantissa and scaled once.
     """
     c = rows[:, first - 1:last]
     width = c.shape[1]
@@ -112,11 +121,13 @@ def _fixed_field(rows: np.ndarray, first: int, last: int, decimals: int) -> np.n
         point = width - decimals - 1
         exponent = np.where(pos < point, point - 1 - pos, point - pos)  # 10^exponent
         exponent[point] = 0
-        weight = np.where(pos == point, 0, 10 ** (exponent + decimals)).astype(np.int64)
+        weight = np.where(pos == point, 0, 10.0 ** (exponent + decimals))
     else:
         point = None
-        weight = (10 ** (width - 1 - pos)).astype(np.int64)
-    mantissa = np.where(is_digit, c - 48, 0).astype(np.int64) @ weight
+        weight = 10.0 ** (width - 1 - pos)
+    # Float64 holds every mantissa here exactly (at most 12 digits < 2**53); a float matrix-vector
+    # product is BLAS, several times faster than the int64 one.
+    mantissa = np.where(is_digit, c - 48, 0).astype(np.float64) @ weight
     value = mantissa / float(10 ** decimals)
     blank = ~is_digit.any(axis=1)
     minus = (c == ord("-")).any(axis=1)
@@ -150,7 +161,10 @@ def parse_hip2(path=None) -> dict[str, np.ndarray]:
     cd = np.cos(dec)
     u = np.stack([cd * np.cos(ra), cd * np.sin(ra), np.sin(dec)])
     bv = f["bv"]
-    vmag = (f["hp_mag"] + v_minus_hp(bv)).astype(np.float32)
+    vmag = f["hp_mag"] + v_minus_hp(bv)
+    for hip, v in V_OVERRIDES.items():
+        vmag[f["hip"] == hip] = v
+    vmag = vmag.astype(np.float32)
     o = np.argsort(vmag, kind="stable")  # brightest first: a magnitude cut is a prefix
     return {
         "format": np.array(CACHE_FORMAT),
@@ -359,6 +373,10 @@ def apparent_gcrs(cat: Catalogue, n: int, tt_jd: float, observer_bary_au, observ
     return p
 
 
+#: refraction.refract is exactly zero at and below this true altitude (its taper ends there).
+_NO_REFRACTION_BELOW_DEG = -3.0
+
+
 def _lift(enu: np.ndarray, d_rad: np.ndarray) -> None:
     """Raise ENU unit vectors (3, M) in place by small altitude angles ``d_rad`` (M,).
 
@@ -387,6 +405,9 @@ def star_field(site, utc, mag_limit: float | None = 6.5, refraction: bool = True
     from domegen.sky.frames import enu_rotation, fast_time
 
     s = _utc_seconds(utc)
+    if mag_limit is not None and not (isinstance(mag_limit, numbers.Real) and np.isfinite(mag_limit)):
+        raise InputError(f"the star magnitude limit must be a finite number, not {mag_limit!r}",
+                         field="star_mag_limit", value=mag_limit, hint="e.g. 6.5 for a dark sky")
     cat = catalogue()
     n = cat.brighter_than(mag_limit)
     t = fast_time(np.array([s]))
@@ -403,8 +424,14 @@ def star_field(site, utc, mag_limit: float | None = 6.5, refraction: bool = True
     if refraction:
         from domegen.sky.refraction import refract
 
-        alt_app = refract(alt, site.temperature_C, site.pressure_mbar)
-        _lift(enu, np.radians(alt_app - alt))
-        alt = alt_app
+        # Refraction is zero below -3 deg (refraction.py tapers it off), so only the stars
+        # above that are touched: about half the sky, half the cost.
+        k = np.flatnonzero(alt > _NO_REFRACTION_BELOW_DEG)
+        alt_k = alt[k]
+        alt_app = refract(alt_k, site.temperature_C, site.pressure_mbar)
+        sub = enu[:, k]
+        _lift(sub, np.radians(alt_app - alt_k))
+        enu[:, k] = sub
+        alt[k] = alt_app
     return StarField(hip=cat.hip[:n], alt_deg=alt, az_deg=az, enu=enu, vmag=cat.vmag[:n],
                      bv=cat.bv[:n], rgb=cat.rgb[:n], utc_s=s, refracted=bool(refraction))

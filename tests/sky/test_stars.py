@@ -133,6 +133,10 @@ def test_v_magnitudes_of_bright_stars():
     expect = {91262: 0.03, 69673: -0.04, 24608: 0.08, 37279: 0.38, 97649: 0.77, 11767: 2.02}
     got = cat.vmag[cat.index_of(list(expect))]
     assert np.allclose(got, list(expect.values()), atol=0.06)
+    # Sirius and Canopus (Hp < 0) take V from a short override list: the order of brightness
+    # of the three brightest stars is Sirius, Canopus, then alpha Cen / Arcturus (common practice).
+    assert list(cat.hip[:2]) == [32349, 30438]
+    assert cat.vmag[0] < -1.4 and cat.vmag[1] < -0.6 and cat.vmag[2] > -0.3
 
 
 def test_v_minus_hp_table():
@@ -247,3 +251,5 @@ def test_bad_times_raise_input_errors():
         stars.star_field(site, datetime(2026, 1, 1))
     with pytest.raises(InputError):
         stars.star_field(site, "tomorrow")
+    with pytest.raises(InputError):
+        stars.star_field(site, datetime(2026, 1, 1, tzinfo=timezone.utc), mag_limit=float("nan"))
