@@ -136,3 +136,21 @@ def test_json_round_trip_and_bad_step(path_2024):
     assert first["name"] == "central" and len(first["points"][0]) == 3
     with pytest.raises(InputError):
         compute_path(path_2024.eclipse, step_s=0)
+
+
+@pytest.mark.parametrize("name, magnitude", [("magnitude_north", 0.6), ("magnitude_south", 0.2),
+                                             ("magnitude_south", 0.8), ("umbra_north", None)])
+def test_curve_points_see_their_magnitude_at_their_instant(path_2024, name, magnitude):
+    """Local circumstances at curve points: maximum at the curve's time, with the curve's magnitude."""
+    e = path_2024.eclipse
+    pieces = path_2024.pieces(name, magnitude)
+    c = max(pieces, key=lambda p: p.utc_s.size)
+    idx = np.linspace(0, c.utc_s.size - 1, 9).astype(int)[1:-1]
+    lc = local_circumstances(e, (c.lat_deg[idx], c.lon_deg[idx]))
+    assert np.max(np.abs(lc.utc_s["max"] - c.utc_s[idx])) < 2.0  # seconds
+    if magnitude is not None:
+        assert np.max(np.abs(lc.magnitude - magnitude)) < 2e-3
+    else:
+        # On the umbral limit totality lasts no time: a graze, or a partial phase of magnitude 1.
+        assert np.max(lc.duration_s) < 5.0
+        assert np.all((lc.type_here == "total") | (np.abs(lc.magnitude - 1.0) < 2e-3))
