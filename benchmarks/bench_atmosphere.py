@@ -10,7 +10,6 @@ import argparse
 import os
 import tempfile
 import time
-from dataclasses import replace
 from datetime import datetime, timezone
 from pathlib import Path
 
@@ -111,7 +110,7 @@ def examples(out_dir: Path, size_px: int = 1024) -> None:
     day = datetime(2026, 6, 21, tzinfo=timezone.utc)
     scenes = {
         "noon": (_noon(site, day), dict(light_pollution_bortle=7)),
-        "sunset": (_time_at_sun_alt(site, day, 1.0, True), dict(light_pollution_bortle=7)),
+        "sunset": (_time_at_sun_alt(site, day, 0.3, True), dict(light_pollution_bortle=7)),
         "civil-twilight": (_time_at_sun_alt(site, day, -4.0, True), dict(light_pollution_bortle=7)),
         "nautical-twilight": (_time_at_sun_alt(site, day, -9.0, True), dict(light_pollution_bortle=7)),
         # full Moon of 2026-09-26, high in the south around local midnight
@@ -119,18 +118,18 @@ def examples(out_dir: Path, size_px: int = 1024) -> None:
         # new Moon 2026-08-12, late evening, the same place imagined without light pollution
         "dark-site-night": (datetime(2026, 8, 12, 23, 30, tzinfo=timezone.utc), dict(light_pollution_bortle=1)),
     }
-    from domegen.render.atmosphere import auto_exposure_ev, light_pollution_mag_arcsec2
-    from domegen.render.frame import sky_light
     from domegen.sky.bodies import body_positions
 
-    cam = CameraSpec(size_px=size_px)
+    t_set = scenes["sunset"][0]
+    sun_az = float(body_positions(site, np.array([t_set.timestamp()]), names=("Sun",)).body("Sun").az_deg[0])
+    cameras = {"sunset-west": CameraSpec(size_px=size_px, field_deg=120.0, view_az_deg=round(sun_az, 1),
+                                         view_alt_deg=25.0)}
+    scenes["sunset-west"] = (t_set, dict(light_pollution_bortle=7))
     for name, (utc, kw) in scenes.items():
-        # SkyLight wants the artificial part of the sky brightness: convert the class here
-        kw = {"light_pollution_mag_arcsec2": light_pollution_mag_arcsec2(bortle=kw["light_pollution_bortle"])}
-        spec = FrameSpec(site=site, utc=utc, camera=cam, layers=LayerSpec(sky_model="physical", **kw, **_extra_layers()))
-        # the atmosphere's automatic exposure (log-average of the hemisphere), passed as a fixed EV
-        light = sky_light(spec, body_positions(site, np.array([utc.timestamp()])))
-        spec = replace(spec, layers=replace(spec.layers, exposure_ev=round(auto_exposure_ev(light), 3)))
+        cam = cameras.get(name, CameraSpec(size_px=size_px))
+        # automatic exposure (exposure_ev None): the renderer asks the atmosphere's auto_exposure_ev
+        spec = FrameSpec(site=site, utc=utc, camera=cam,
+                         layers=LayerSpec(sky_model="physical", **kw, **_extra_layers()))
         t0 = time.perf_counter()
         frame = render_frame(spec)
         dt = time.perf_counter() - t0

@@ -2,7 +2,7 @@
 
 Spherical shell, Earth radius 6360 km, top at 100 km (high enough that the zenith stays
 sunlit down to a Sun depression of about 10 deg, as twilight needs). Rayleigh with an
-8 km scale height, aerosols (Mie) with a 1.2 km scale height and Cornette-Shanks phase,
+8 km scale height, aerosols (Mie) with a 2 km scale height and Cornette-Shanks phase,
 ozone as a tent profile peaking at 25 km (Bruneton & Neyret 2008 / Bruneton 2017 choices).
 """
 
@@ -28,14 +28,17 @@ class Atmosphere:
     mie_g: asymmetry of the Cornette-Shanks phase function.
     ozone_du: ozone column in Dobson units.
     ground_albedo: Lambertian ground reflectance feeding multiple scattering.
+
+    The aerosol defaults (AOD 0.18, g 0.55, 2 km) were chosen so that relative luminance matches
+    the CIE standard clear sky (type 12) for Sun altitudes 30 and 60 deg (max error 7 % / 13 %).
     """
 
-    aerosol_optical_depth_550: float = 0.2
+    aerosol_optical_depth_550: float = 0.18
     angstrom_exponent: float = 1.3
     aerosol_single_scatter_albedo: float = 0.9
     mie_g: float = 0.55
     rayleigh_scale_height_m: float = 8000.0
-    aerosol_scale_height_m: float = 1200.0
+    aerosol_scale_height_m: float = 2000.0
     ozone_du: float = 300.0
     ground_albedo: float = 0.2
 
