@@ -128,7 +128,11 @@ def solar_eclipse_on(day) -> SolarEclipse:
     start = datetime(d.year, d.month, d.day, tzinfo=timezone.utc)
     lo = max(start - timedelta(days=200), EPHEMERIS_START_UTC)
     hi = min(start + timedelta(days=201), EPHEMERIS_END_UTC)
-    near = find_solar_eclipses(lo, hi)
+    decades = range(lo.year - lo.year % _BLOCK_YEARS, hi.year + 1, _BLOCK_YEARS)
+    if all(y in _BLOCKS for y in decades):
+        near = find_solar_eclipses(lo, hi)
+    else:  # search just this window (a whole decade is not needed for one date)
+        near = [e for e in _search_tt(_jd(lo), _jd(hi)) if lo <= e.greatest_utc <= hi]
     for e in near:
         if e.date == d:
             return e
