@@ -154,3 +154,33 @@ def test_curve_points_see_their_magnitude_at_their_instant(path_2024, name, magn
         # On the umbral limit totality lasts no time: a graze, or a partial phase of magnitude 1.
         assert np.max(lc.duration_s) < 5.0
         assert np.all((lc.type_here == "total") | (np.abs(lc.magnitude - 1.0) < 2e-3))
+
+
+def test_central_line_and_limits_against_skyfield(path_2024):
+    """From central-line points skyfield sees the Moon centred on the Sun; from limit points the limbs touch."""
+    from skyfield.api import wgs84
+
+    from domegen.eclipse.besselian import EARTH_RADIUS_KM, K_UMBRA, SUN_RADIUS_KM
+    from domegen.sky.ephemeris import ephemeris, timescale
+    from domegen.sky.times import from_unix_seconds
+
+    eph, ts = ephemeris(), timescale()
+
+    def geometry(lat, lon, utc_s):
+        t = ts.from_datetime(from_unix_seconds(float(utc_s)))
+        obs = (eph["earth"] + wgs84.latlon(float(lat), float(lon))).at(t)
+        sun = obs.observe(eph["sun"]).apparent()
+        moon = obs.observe(eph["moon"]).apparent()
+        rs = np.degrees(np.arcsin(SUN_RADIUS_KM / sun.distance().km))
+        rm = np.degrees(np.arcsin(K_UMBRA * EARTH_RADIUS_KM / moon.distance().km))
+        return sun.separation_from(moon).degrees * 3600, abs(rm - rs) * 3600
+
+    (central,) = path_2024.pieces("central")
+    for i in np.linspace(10, central.utc_s.size - 10, 4).astype(int):
+        sep, _ = geometry(central.lat_deg[i], central.lon_deg[i], central.utc_s[i])
+        assert sep < 1.0  # arcsec
+    for name in ("umbra_north", "umbra_south"):
+        (lim,) = path_2024.pieces(name)
+        for i in np.linspace(10, lim.utc_s.size - 10, 3).astype(int):
+            sep, edge = geometry(lim.lat_deg[i], lim.lon_deg[i], lim.utc_s[i])
+            assert abs(sep - edge) < 1.0, name
