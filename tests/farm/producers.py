@@ -20,3 +20,11 @@ def pattern_frame(spec, fmt: str, bit_depth: int) -> bytes:
     n = spec.camera.size_px
     planes = rng.integers(0, 256, size=(4, n, n), dtype=np.uint8)
     return encode_png(planes)
+
+
+def slow_pattern_frame(spec, fmt: str, bit_depth: int) -> bytes:
+    """``pattern_frame`` taking 0.25 s, so a test can interrupt a run midway."""
+    import time
+
+    time.sleep(0.25)
+    return pattern_frame(spec, fmt, bit_depth)
