@@ -137,3 +137,23 @@ def test_bad_sites_are_input_errors():
         local_circumstances(e, (np.array([95.0]), np.array([0.0])))
     with pytest.raises(InputError):
         local_circumstances(e, "Paris")
+
+
+def test_second_and_third_contacts_agree_with_skyfield():
+    """At C2 and C3 (Dallas, 2024) skyfield's topocentric limbs touch internally (Moon radius k2)."""
+    from skyfield.api import wgs84
+
+    from domegen.eclipse.besselian import EARTH_RADIUS_KM, K_UMBRA, SUN_RADIUS_KM
+    from domegen.sky.ephemeris import ephemeris, timescale
+
+    lat, lon, elev = 32.7767, -96.797, 150.0
+    lc = local_circumstances(solar_eclipse_on("2024-04-08"), Site(lat, lon, elev))
+    eph = ephemeris()
+    for c in ("c2", "c3"):
+        t = timescale().from_datetime(lc.utc(c))
+        obs = (eph["earth"] + wgs84.latlon(lat, lon, elevation_m=elev)).at(t)
+        sun = obs.observe(eph["sun"]).apparent()
+        moon = obs.observe(eph["moon"]).apparent()
+        rs = np.degrees(np.arcsin(SUN_RADIUS_KM / sun.distance().km))
+        rm = np.degrees(np.arcsin(K_UMBRA * EARTH_RADIUS_KM / moon.distance().km))
+        assert abs(sun.separation_from(moon).degrees - (rm - rs)) * 3600 < 1.0, c
