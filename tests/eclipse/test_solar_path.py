@@ -184,3 +184,12 @@ def test_central_line_and_limits_against_skyfield(path_2024):
         for i in np.linspace(10, lim.utc_s.size - 10, 3).astype(int):
             sep, edge = geometry(lim.lat_deg[i], lim.lon_deg[i], lim.utc_s[i])
             assert abs(sep - edge) < 1.0, name
+
+
+def test_hybrid_path_is_annular_at_its_ends_and_total_in_the_middle():
+    e = solar_eclipse_on("2023-04-20")  # hybrid in the NASA canon
+    (central,) = compute_path(e, step_s=60, magnitudes=()).pieces("central")
+    idx = [0, central.utc_s.size // 2, central.utc_s.size - 1]
+    lc = local_circumstances(e, (central.lat_deg[idx], central.lon_deg[idx]))
+    assert list(lc.type_here) == ["annular", "total", "annular"]
+    assert lc.magnitude[0] < 1.0 < lc.magnitude[1] and lc.magnitude[2] < 1.0
