@@ -29,16 +29,10 @@ def run(args) -> int:
     from domegen.cache import atomic_write_bytes
     from domegen.cli.events import place_note
     from domegen.educator.cuesheet import cue_sheet_csv, cue_sheet_markdown, sky_at_maximum
-    from domegen.educator.eclipses import eclipse_at_site
+    from domegen.educator.eclipses import seen_eclipse_at_site
 
     site = site_from_args(args)
-    ecl = eclipse_at_site(args.eclipse, site)
-    if not ecl.contacts:
-        from domegen.errors import NotFoundError
-
-        raise NotFoundError(f"the {ecl.kind} eclipse of {args.eclipse} is not seen from this site",
-                            field="eclipse", value=args.eclipse,
-                            hint="choose a site inside the eclipse's zone of visibility")
+    ecl = seen_eclipse_at_site(args.eclipse, site)
     sky = sky_at_maximum(ecl, star_mag_limit=args.star_mag)
     md = cue_sheet_markdown(ecl, sky)
     if args.md:

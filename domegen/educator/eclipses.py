@@ -61,6 +61,8 @@ class LocalEclipse:
     visible: bool
     greatest_utc: datetime
     details: dict = field(default_factory=dict, compare=False, hash=False)
+    #: the engine's eclipse object (SolarEclipse or LunarEclipse)
+    source: object = field(default=None, compare=False, hash=False, repr=False)
 
     def contact(self, key: str) -> Contact | None:
         for c in self.contacts:
@@ -152,7 +154,7 @@ def lunar_at_site(eclipse, site: Site) -> LocalEclipse:
     return LocalEclipse(kind="lunar", global_type=eclipse.type, local_type=local_type, site=site,
                         contacts=contacts, magnitude=eclipse.umbral_magnitude, obscuration=None,
                         duration_s=None if dur_min is None else dur_min * 60.0,
-                        visible=bool(seen), greatest_utc=eclipse.greatest_utc,
+                        visible=bool(seen), greatest_utc=eclipse.greatest_utc, source=eclipse,
                         details={"penumbral_magnitude": round(eclipse.penumbral_magnitude, 4),
                                  "saros": eclipse.saros,
                                  "phase_visible_fraction": {k: (None if v is None else round(v, 3))
@@ -196,7 +198,7 @@ def solar_at_site(eclipse, site: Site) -> LocalEclipse:
     dur = float(lc.duration_s[0]) if local_type in ("total", "annular") else None
     return LocalEclipse(kind="solar", global_type=eclipse.type, local_type=local_type, site=site,
                         contacts=contacts, magnitude=mag, obscuration=obs, duration_s=dur,
-                        visible=bool(visible), greatest_utc=eclipse.greatest_utc,
+                        visible=bool(visible), greatest_utc=eclipse.greatest_utc, source=eclipse,
                         details={"saros": getattr(eclipse, "saros", None),
                                  "gamma": round(float(eclipse.gamma), 4),
                                  "contact_above_horizon": above,
@@ -243,3 +245,13 @@ def eclipse_at_site(day: str | date, site: Site) -> LocalEclipse:
             return lunar_at_site(ecl, site)
     raise NotFoundError(f"no solar or lunar eclipse on {d.isoformat()}", field="eclipse",
                         value=d.isoformat(), hint="list them with: domegen eclipses --from ... --to ...")
+
+
+def seen_eclipse_at_site(day: str | date, site: Site) -> LocalEclipse:
+    """:func:`eclipse_at_site`, raising :class:`NotFoundError` when no contact occurs there."""
+    ecl = eclipse_at_site(day, site)
+    if not ecl.contacts:
+        raise NotFoundError(f"the {ecl.kind} eclipse of {day} is not seen from this site",
+                            field="eclipse", value=str(day),
+                            hint="choose a site inside the eclipse's zone of visibility")
+    return ecl
