@@ -98,3 +98,29 @@ def test_moonlit_sky_agrees_with_ks91(moon_alt):
     assert np.all(np.abs(dmag) < 0.75), dmag
     # full Moon lifts the zenith by several magnitudes over a dark sky (KS91 Fig. 1)
     assert zenith_mag(dark) - zenith_mag(lit) > 1.5
+
+
+def test_zodiacal_light_table_and_geometry():
+    # Leinert et al. 1998 (A&AS 127, 1): the ecliptic pole is ~60 S10(V) (~23.3 V mag/arcsec^2,
+    # 27.78 - 2.5 log10(60)); the evening cone at 30 deg from the Sun on the ecliptic is ~20 times
+    # brighter; the gegenschein (anti-Sun) is brighter than 90 deg off the ecliptic.
+    from domegen.render.atmosphere.zodiacal import zodiacal_mag_arcsec2
+
+    pole = zodiacal_mag_arcsec2(180.0, 75.0)
+    assert 23.0 < pole < 23.8
+    cone = zodiacal_mag_arcsec2(30.0, 0.0)
+    assert 2.5 < pole - cone < 4.5
+    assert zodiacal_mag_arcsec2(180.0, 0.0) < zodiacal_mag_arcsec2(135.0, 0.0)
+
+
+def test_zodiacal_light_in_the_sky_keeps_the_dark_zenith_near_21_8():
+    # Sun 25 deg below the western horizon, ecliptic through the zenith (pole on the northern
+    # horizon): the western sky low along the ecliptic glows brighter than the eastern sky at the
+    # same altitude 100 deg further from the Sun; the zenith stays within 0.5 mag of 21.8.
+    base = sun_light(-25.0, az_deg=270.0)
+    pole = enu(0.0, 0.0)
+    light = SkyLight(sun_enu=base.sun_enu, sun_alt_deg=-25.0, extra={"ecliptic_pole_enu": pole})
+    d = enu(np.array([20.0, 20.0, 90.0]), np.array([270.0, 90.0, 0.0])).astype(np.float32)
+    lum = luminance(SKY.radiance(d, light))
+    assert lum[0] > 1.3 * lum[1]
+    assert abs(float(cd_m2_to_mag_arcsec2(lum[2])) - 21.8) < 0.5

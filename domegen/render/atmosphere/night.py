@@ -17,6 +17,11 @@ from . import spectrum
 #: maximum (Patat 2003, A&A 400, 1183).
 NATURAL_ZENITH_MAG_ARCSEC2 = 21.8
 
+#: Share of the natural zenith glow that is not zodiacal light (airglow ~65 % + starlight ~7 %;
+#: the split quoted on ayton.id.au "sky brightness", a weak source) when zodiacal light is
+#: drawn on its own.
+NON_ZODIACAL_SHARE = 0.73
+
 #: Total zenith sky brightness, mag/arcsec^2, that each Bortle (2001, Sky & Telescope, Feb.)
 #: class maps to. Classes 1-3: middle of the 21.7-22.0 / 21.5-21.7 / 21.3-21.5 ranges given
 #: for the scale in its Wikipedia table; 4-7: inside both that table's ranges (4: 20.4-21.3,

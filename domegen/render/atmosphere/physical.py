@@ -11,6 +11,7 @@ from ..sky_model import SkyLight
 from . import night, spectrum
 from .extinction import transmittance_rgb, v_extinction
 from .medium import Atmosphere
+from .zodiacal import ecliptic_coordinates, zodiacal_mag_arcsec2
 from .scatter import SUN_ALT_GRID, eclipse_xyz, scattered_xyz, site_table
 
 #: Site heights are rounded to this step (m) to share one table per venue.
@@ -85,12 +86,28 @@ class PhysicalSky:
         return xyz
 
     def night_rgb(self, dirs_enu: np.ndarray, light: SkyLight) -> np.ndarray:
-        """Natural night glow + artificial sky glow, linear sRGB (M, 3) cd/m^2."""
-        table = _night_table(self.atmosphere, float(light.site_elev_m), float(self.natural_zenith_mag_arcsec2),
-                             light.light_pollution_mag_arcsec2)
+        """Natural night glow + artificial sky glow (+ zodiacal light), linear sRGB (M, 3) cd/m^2.
+
+        With light.extra["ecliptic_pole_enu"] (unit vector (3,) of the north ecliptic pole in ENU)
+        the zodiacal light is drawn from Leinert et al. 1998 and the uniform glow keeps only the
+        airglow + starlight share of the natural zenith brightness (night.NON_ZODIACAL_SHARE).
+        """
+        pole = light.extra.get("ecliptic_pole_enu") if light.extra else None
+        natural = float(self.natural_zenith_mag_arcsec2)
+        if pole is not None:
+            natural += -2.5 * np.log10(night.NON_ZODIACAL_SHARE)
+        table = _night_table(self.atmosphere, float(light.site_elev_m), natural, light.light_pollution_mag_arcsec2)
         z = np.asarray(dirs_enu)[2].astype(np.float32)
         x = np.linspace(-1.0, 1.0, table.shape[0], dtype=np.float32)
-        return np.stack([np.interp(z, x, table[:, k]) for k in range(3)], axis=1).astype(np.float32)
+        rgb = np.stack([np.interp(z, x, table[:, k]) for k in range(3)], axis=1).astype(np.float32)
+        if pole is not None:
+            lon, lat = ecliptic_coordinates(dirs_enu, light.sun_enu, pole)
+            alt = np.degrees(np.arcsin(np.clip(z, -1.0, 1.0)))
+            k_v = v_extinction(self.atmosphere, light.site_elev_m)
+            ext = 10.0 ** (-0.4 * k_v * night.ks91_airmass(90.0 - np.maximum(alt, 0.0)))
+            lum = night.mag_arcsec2_to_cd_m2(zodiacal_mag_arcsec2(lon, lat)) * ext
+            rgb += (lum[:, None] * night.NATURAL_RGB).astype(np.float32)
+        return rgb
 
     def radiance(self, dirs_enu: np.ndarray, light: SkyLight) -> np.ndarray:
         """Sky radiance for view directions (3, M) -> (M, 3) float32 linear sRGB, cd/m^2."""
