@@ -111,32 +111,32 @@ def _fixed_field(rows: np.ndarray, first: int, last: int, decimals: int) -> np.n
 
     ``rows`` is (N, line) uint8.  Fortran F formats put the decimal point at
     a fixed byte, so each byte has a fixed power of ten; the digits are
-    summed as one exact integer mantissa and scaled once.
+    summed as one exact int64 mantissa and scaled once.
     """
     c = rows[:, first - 1:last]
     width = c.shape[1]
-    is_digit = (c >= 48) & (c <= 57)
+    digits = c - np.uint8(48)  # uint8 arithmetic wraps: non-digits land above 9
+    is_digit = digits <= 9
+    digits[~is_digit] = 0
     pos = np.arange(width)
     if decimals:
         point = width - decimals - 1
         exponent = np.where(pos < point, point - 1 - pos, point - pos)  # 10^exponent
         exponent[point] = 0
-        weight = np.where(pos == point, 0, 10.0 ** (exponent + decimals))
+        weight = np.where(pos == point, 0, 10 ** (exponent + decimals)).astype(np.int64)
     else:
         point = None
-        weight = 10.0 ** (width - 1 - pos)
-    # Float64 holds every mantissa here exactly (at most 12 digits < 2**53); a float matrix-vector
-    # product is BLAS, several times faster than the int64 one.
-    mantissa = np.where(is_digit, c - 48, 0).astype(np.float64) @ weight
-    value = mantissa / float(10 ** decimals)
-    blank = ~is_digit.any(axis=1)
+        weight = (10 ** (width - 1 - pos)).astype(np.int64)
+    value = (digits.astype(np.int64) @ weight) / float(10 ** decimals)
+    n_digits = is_digit.sum(axis=1, dtype=np.int8)
+    blank = n_digits == 0
     minus = (c == ord("-")).any(axis=1)
-    ok = (is_digit | (c == 32) | (c == ord("-")) | (c == ord("."))).all(axis=1)
+    bad = ~(is_digit | (c == 32) | (c == ord("-")) | (c == ord(".")))
     if point is not None:
-        ok &= blank | (c[:, point] == ord("."))
-    if not ok.all():
-        bad = int(np.flatnonzero(~ok)[0]) + 1
-        raise ValueError(f"hip2.dat line {bad}: bytes {first}-{last} are not a number")
+        bad[:, point] |= ~blank & (c[:, point] != ord("."))
+    if bad.any():
+        line = int(np.flatnonzero(bad.any(axis=1))[0]) + 1
+        raise ValueError(f"hip2.dat line {line}: bytes {first}-{last} are not a number")
     return np.where(blank, np.nan, np.where(minus, -value, value))
 
 
@@ -156,7 +156,13 @@ def parse_hip2(path=None) -> dict[str, np.ndarray]:
     rows = raw.reshape(-1, _LINE_BYTES)
     if not (rows[:, -1] == 10).all():
         raise ValueError(f"{path}: lines are not {_LINE_BYTES - 1} characters long")
-    f = {name: _fixed_field(rows, *spec) for name, spec in _FIELDS.items()}
+    # One pass over the 32 MB gathers the ~70 bytes per line that we read (cache-friendly after).
+    spans = [np.arange(a - 1, b) for a, b, _ in _FIELDS.values()]
+    packed = np.take(rows, np.concatenate(spans), axis=1)  # (much faster than fancy indexing)
+    f, at = {}, 0
+    for name, (a, b, d) in _FIELDS.items():
+        f[name] = _fixed_field(packed, at + 1, at + b - a + 1, d)
+        at += b - a + 1
     ra, dec = f["ra_rad"], f["dec_rad"]
     cd = np.cos(dec)
     u = np.stack([cd * np.cos(ra), cd * np.sin(ra), np.sin(dec)])
