@@ -55,9 +55,16 @@ def _sun_cos_zenith(proj, subsolar) -> np.ndarray:
     """(H, W) float32 cosine of the Sun's zenith distance (sphere), interpolated from a coarse grid."""
     from domegen.maps.projection import coarse_samples, upsample
 
+    sla, slo = np.radians(subsolar[0]), np.radians(subsolar[1])
+    if proj.kind == "equirectangular":  # rank-2 separable in latitude and longitude
+        lat, lon = proj.grid()
+        la = np.radians(lat[:, :1]).astype(np.float32)
+        lo = np.radians(lon[:1, :]).astype(np.float32)
+        out = np.cos(lo - np.float32(slo)) * (np.cos(la) * np.float32(np.cos(sla)))
+        out += np.sin(la) * np.float32(np.sin(sla))
+        return out
     xs, ys, lat, lon = coarse_samples(proj, 8)
     la, lo = np.radians(lat), np.radians(lon)
-    sla, slo = np.radians(subsolar[0]), np.radians(subsolar[1])
     c = np.sin(la) * np.sin(sla) + np.cos(la) * np.cos(sla) * np.cos(lo - slo)
     return upsample(c, xs, ys, proj.width_px, proj.height_px)
 
@@ -103,8 +110,13 @@ def night_alpha(proj, utc) -> np.ndarray:
     """(H, W) float32 darkening 0..1: 0 in daylight, 1 below -12 deg, smooth twilight ramp."""
     cz = _sun_cos_zenith(proj, subsolar_point(utc))
     # sin(alt) ~ alt for the ramp; 12 deg = 0.2079 in sine
-    r = np.clip(0.08 - cz / np.float32(0.2079), 0.0, 1.0)
-    return r * r * (3.0 - 2.0 * r)
+    r = cz * np.float32(-1.0 / 0.2079)
+    r += np.float32(0.08)
+    np.clip(r, 0.0, 1.0, out=r)
+    s = np.float32(3.0) - np.float32(2.0) * r
+    s *= r
+    s *= r
+    return s
 
 
 def draw_base(canvas, proj, utc=None, palette: Palette = DEFAULT) -> None:
@@ -134,17 +146,20 @@ def draw_base(canvas, proj, utc=None, palette: Palette = DEFAULT) -> None:
 
 def draw_graticule(canvas, proj, step_deg: float = 15.0, palette: Palette = DEFAULT) -> None:
     lines = []
-    fine = np.linspace(-90.0, 90.0, 361)
+    # straight lines on a plate carree map need only their ends
+    n = 2 if proj.kind == "equirectangular" else None
+    fine = np.linspace(-90.0, 90.0, n or 361)
     for lon in np.arange(-180.0, 180.0, step_deg):
         lines.append(proj.polyline(fine, np.full_like(fine, lon)))
     lon_f = np.linspace(-180.0, 180.0, 721)
+    lon_p = proj.lon0_deg + np.array([-180.0, 0.0, 180.0 - 1e-9]) if n else lon_f
     for lat in np.arange(-90.0 + step_deg, 90.0, step_deg):
         if abs(lat) > 1e-9:
-            lines.append(proj.polyline(np.full_like(lon_f, lat), lon_f))
+            lines.append(proj.polyline(np.full_like(lon_p, lat), lon_p))
     st = palette.graticule
     canvas.stroke(lines, st.colour, st.width_px, st.dash_px)
     eq = palette.equator
-    canvas.stroke([proj.polyline(np.zeros_like(lon_f), lon_f)], eq.colour, eq.width_px, eq.dash_px)
+    canvas.stroke([proj.polyline(np.zeros_like(lon_p), lon_p)], eq.colour, eq.width_px, eq.dash_px)
 
 
 def terminator_latlon(utc, n: int = 721):

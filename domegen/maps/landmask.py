@@ -138,6 +138,6 @@ def land_fraction_equirect(width_px: int, height_px: int, lon0_deg: float = 0.0)
     start = ((lon0_deg - 180.0 + 180.0) % 360.0) / CELL_DEG
     wc = _box_weights(width_px, nc, start)
     rows = (wr @ grid.astype(np.float32)).astype(np.float32)  # (H, nc)
-    out = (wc @ rows.T).T.astype(np.float32)                  # (H, W)
+    out = np.ascontiguousarray((wc @ rows.T).T, dtype=np.float32)  # (H, W), C order
     out *= np.float32(1 / 255.0)
     return np.clip(out, 0.0, 1.0, out=out)

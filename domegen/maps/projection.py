@@ -257,7 +257,12 @@ def upsample(field: np.ndarray, xs: np.ndarray, ys: np.ndarray, width: int, heig
     r0, fr = weights(ys, height)
     c0, fc = weights(xs, width)
     rows = f[r0] * (1 - fr)[:, None] + f[r0 + 1] * fr[:, None]  # (H, Wc)
-    return rows[:, c0] * (1 - fc)[None, :] + rows[:, c0 + 1] * fc[None, :]
+    out = np.take(rows, c0, axis=1)  # C order (mixing C and F order operands is slow)
+    out *= (1 - fc)[None, :]
+    nxt = np.take(rows, c0 + 1, axis=1)
+    nxt *= fc[None, :]
+    out += nxt
+    return np.ascontiguousarray(out)
 
 
 @functools.lru_cache(maxsize=4)

@@ -298,7 +298,8 @@ def segment_coverage(a, b, width: int, height: int, width_px: float):
     du = ub - ua
     slope = np.where(np.abs(du) > 1e-12, (vb - va) / np.where(np.abs(du) > 1e-12, du, 1.0), 0.0)
     umin, umax = np.minimum(ua, ub), np.maximum(ua, ub)
-    k_major = int(np.ceil(16.0 + 2 * reach + 2))
+    seg_max = float(np.max(np.abs(d))) if len(d) else 0.0  # longest major-axis extent
+    k_major = int(np.ceil(seg_max + 2 * reach + 2))
     k_minor = int(np.ceil(2.83 * reach + 3))
     om = np.arange(k_major)
     on = np.arange(k_minor)
