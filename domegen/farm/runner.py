@@ -78,11 +78,15 @@ def render_scene(scene, *, frames=None, workers: int | None = None, scale: float
         scene = with_output_root(scene, out)
     check_output_root(scene, trusted_root=out is not None, allow_outside=allow_outside)
     numbers = frames if isinstance(frames, list) else parse_frames(frames, scene.frame_count)
-    jobs = build_jobs(scene, numbers, scale=scale, allow_outside=allow_outside, producer=producer)
     root = scene.output.root
+    manifest = Manifest(root).load()
+    unknown = [n for n in numbers if n not in manifest.records]
+    if unknown and not skip_space_check:  # quick refusal before planning every frame
+        probe = build_jobs(scene, unknown[:1], scale=scale, allow_outside=allow_outside, producer=producer)
+        check_disk(root, estimate_bytes(probe, manifest) * len(unknown))
+    jobs = build_jobs(scene, numbers, scale=scale, allow_outside=allow_outside, producer=producer)
     root.mkdir(parents=True, exist_ok=True)
     _clean_tmp(root)
-    manifest = Manifest(root).load()
     todo, skipped = split_done(jobs, manifest, verify=verify)
     report = RenderReport(frames=numbers, skipped=skipped)
     report.estimate_bytes = estimate_bytes(todo, manifest)

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import bisect
 import functools
+import os
 from dataclasses import dataclass, field
 from datetime import datetime
 from pathlib import Path
@@ -30,13 +31,18 @@ class OutputSettings:
 
     def frame_path(self, n: int, *, allow_outside: bool = False) -> Path:
         """The file of frame ``n``; :class:`SceneError` if it would leave ``root`` (unless allowed)."""
-        p = (self.root / self.relative_name(n)).resolve()
-        if not allow_outside and not p.is_relative_to(self.root.resolve()):
+        root = self._real_root
+        p = os.path.normpath(os.path.join(root, self.relative_name(n)))
+        if not allow_outside and os.path.commonpath([root, p]) != root:
             raise SceneError(f"frame {n} would be written outside the output folder: {p}",
                              field="output.file_pattern", value=self.pattern,
                              hint="remove '..' and absolute paths from the pattern, or pass "
                                   "--allow-outside-output if you really mean it")
-        return p
+        return Path(p)
+
+    @functools.cached_property
+    def _real_root(self) -> str:
+        return str(self.root.resolve())
 
 
 @dataclass(frozen=True)
