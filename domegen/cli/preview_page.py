@@ -15,9 +15,12 @@ def register(subparsers) -> None:
         description="Render the dome at the key moments of an eclipse (C1, C2, maximum, C3, C4 for "
                     "a solar eclipse; U1, U2, maximum, U3, U4 for a lunar one), and write one HTML "
                     "page with the frames, the cue table, the bright objects and a track map, all "
-                    "embedded so it opens offline.")
-    p.add_argument("--eclipse", required=True, metavar="DATE",
-                   help="UTC date of greatest eclipse, YYYY-MM-DD")
+                    "embedded so it opens offline. With --evening, the dome at sunset, the ends "
+                    "of the three twilights and later that night instead.")
+    what = p.add_mutually_exclusive_group(required=True)
+    what.add_argument("--eclipse", metavar="DATE", help="UTC date of greatest eclipse, YYYY-MM-DD")
+    what.add_argument("--evening", metavar="DATE",
+                      help="a local date: the dome from sunset through twilight into the night")
     add_site_arguments(p)
     p.add_argument("-o", "--output", required=True, metavar="DIR",
                    help="folder to write index.html into (created if missing)")
@@ -42,14 +45,25 @@ def run(args) -> int:
         raise InputError(f"map width {args.map_width} px is outside 240..4096", field="map_width",
                          value=args.map_width)
     site = site_from_args(args)
-    ecl = seen_eclipse_at_site(args.eclipse, site)
+    ecl = None if args.evening else seen_eclipse_at_site(args.eclipse, site)
+    day = None
+    if args.evening:
+        from domegen.sky.times import parse_date
+
+        day = parse_date(args.evening, field="evening")
     out = Path(args.output)
     try:
         out.mkdir(parents=True, exist_ok=True)
     except OSError as err:
         raise InputError(f"cannot create the folder: {err.strerror}", field="output",
                          value=str(out)) from None
-    page = build_preview(ecl, size_px=args.size, map_width_px=args.map_width, generated_utc=datetime.now(timezone.utc))
+    now = datetime.now(timezone.utc)
+    if ecl is None:
+        from domegen.educator.evening import build_evening_preview
+
+        page = build_evening_preview(site, day, size_px=args.size, generated_utc=now)
+    else:
+        page = build_preview(ecl, size_px=args.size, map_width_px=args.map_width, generated_utc=now)
     path = out / PAGE_NAME
     atomic_write_bytes(path, page.encode("utf-8"))
     print(str(path))

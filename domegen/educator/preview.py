@@ -34,14 +34,22 @@ def data_uri(data: bytes, mime: str) -> str:
     return f"data:{mime};base64," + base64.b64encode(data).decode("ascii")
 
 
+def dome_jpeg(site, utc: datetime, camera, *, labels: bool) -> bytes:
+    """One rendered dome master as JPEG bytes (cardinal points and horizon always drawn)."""
+    from domegen.render.frame import render_frame
+    from domegen.render.output import encode_frame
+    from domegen.render.spec import FrameSpec, LayerSpec
+
+    layers = LayerSpec(labels=0.8 if labels else 0.0, cardinals=0.8, horizon_line=0.4)
+    return encode_frame(render_frame(FrameSpec(site, utc, camera, layers)), "jpeg")
+
+
 def dome_frames(ecl: LocalEclipse, *, size_px: int = 480, labels: bool = True) -> list[Figure]:
     """Rendered dome masters (JPEG data URIs) at the eclipse's key moments.
 
     The dome's front (bottom of the frame) faces the eclipsed body's azimuth at maximum.
     """
-    from domegen.render.frame import render_frame
-    from domegen.render.output import encode_frame
-    from domegen.render.spec import CameraSpec, FrameSpec, LayerSpec
+    from domegen.render.spec import CameraSpec
 
     keys = SOLAR_MOMENTS if ecl.kind == "solar" else LUNAR_MOMENTS
     mx = ecl.contact("max")
@@ -56,10 +64,7 @@ def dome_frames(ecl: LocalEclipse, *, size_px: int = 480, labels: bool = True) -
         c = ecl.contact(key)
         if c is None:
             continue
-        layers = LayerSpec(labels=0.8 if labels and key in dark else 0.0, cardinals=0.8,
-                           horizon_line=0.4)
-        frame = render_frame(FrameSpec(ecl.site, c.utc, camera, layers))
-        jpg = encode_frame(frame, "jpeg")
+        jpg = dome_jpeg(ecl.site, c.utc, camera, labels=labels and key in dark)
         loc = c.utc.astimezone(zone(tz))
         where = (f"{ecl.body} {c.alt_deg:+.1f}\u00b0 alt, {c.az_deg:.0f}\u00b0 {compass(c.az_deg)}")
         if c.alt_deg <= 0:
@@ -150,26 +155,37 @@ def page_html(ecl: LocalEclipse, figures: list[Figure], map_fig: Figure | None,
                 f"</tr>{sky_rows}</table>" if seen else
                 "<p>No planet or bright star is expected to show at this moment.</p>")
     loc_max = mx.utc.astimezone(zone(tz))
+    sections = [
+        ("The dome at the key moments", '<div class="domes">' + "".join(_figure(f) for f in figures)
+         + "</div>"),
+        (f"Cues ({tz})",
+         f"<table><tr><th>Cue</th><th>Local time</th><th>UTC</th><th>From start</th>"
+         f"<th>{body} alt</th><th>{body} az</th><th>What happens</th></tr>{rows}</table>"),
+        (f"Bright enough to point out at maximum ({loc_max.strftime('%H:%M')} {loc_max.tzname()})",
+         sky_html),
+    ]
+    if map_fig is not None:
+        sections.append(("Track map", _figure(map_fig, "map")))
+    return page_shell(f"{ecl.title} \u2014 {venue}", ecl.title, facts, sections, tz=tz,
+                      caution=CAUTION if ecl.kind == "solar" else None, generated_utc=generated_utc)
+
+
+def page_shell(title: str, heading: str, facts: list[str], sections: list[tuple[str, str]], *,
+               tz: str, caution: str | None = None, generated_utc: datetime | None = None) -> str:
+    """The common page: heading, fact list, (heading, trusted HTML) sections, caution, footer."""
     parts = [
         "<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
         '<meta name="viewport" content="width=device-width, initial-scale=1">',
         "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; "
         "img-src data:; style-src 'unsafe-inline'\">",
-        f"<title>{_e(ecl.title)} \u2014 {_e(venue)}</title><style>{_CSS}</style></head><body><main>",
-        f"<h1>{_e(ecl.title)}</h1>",
+        f"<title>{_e(title)}</title><style>{_CSS}</style></head><body><main>",
+        f"<h1>{_e(heading)}</h1>",
         "<ul class=facts>" + "".join(f"<li>{_e(f)}</li>" for f in facts) + "</ul>",
-        "<h2>The dome at the key moments</h2>",
-        '<div class="domes">' + "".join(_figure(f) for f in figures) + "</div>",
-        f"<h2>Cues ({_e(tz)})</h2>",
-        f"<table><tr><th>Cue</th><th>Local time</th><th>UTC</th><th>From start</th>"
-        f"<th>{body} alt</th><th>{body} az</th><th>What happens</th></tr>{rows}</table>",
-        f"<h2>Bright enough to point out at maximum ({_e(loc_max.strftime('%H:%M'))} "
-        f"{_e(loc_max.tzname())})</h2>", sky_html,
     ]
-    if map_fig is not None:
-        parts += ["<h2>Track map</h2>", _figure(map_fig, "map")]
-    if ecl.kind == "solar":
-        parts.append(f'<div class="caution" id="caution"><strong>Eye safety.</strong> {_e(CAUTION)}</div>')
+    for head, body_html in sections:
+        parts += [f"<h2>{_e(head)}</h2>", body_html]
+    if caution:
+        parts.append(f'<div class="caution" id="caution"><strong>Eye safety.</strong> {_e(caution)}</div>')
     stamp = f" on {iso_utc(generated_utc)}" if generated_utc else ""
     parts += [f"<footer>Made with domegen{_e(stamp)}. Positions: JPL DE421; times UTC and "
               f"{_e(tz)}.</footer>", "</main></body></html>"]
