@@ -112,8 +112,9 @@ def test_published_limit_sites_1999():
 
     "Passing 20 km north of Paris, the City of Lights will be darkened by an eclipse of
     magnitude 0.994" (F. Espenak, Solar-Eclipse Preview: August 11, 1999, Sky & Telescope,
-    Aug 1996); Kaiserslautern 55 s of totality, near the northern limit (eclipse listing of
-    the NASA 1999 bulletin, as quoted by the Berlin "Great European Eclipse" page).
+    Aug 1996); Kaiserslautern "55 seconds" of totality, near the northern limit (city list of
+    the "Great European Eclipse of 1999" page, surveyor.in-berlin.de; city-centre coordinates
+    from memory, so only inside/short is checked).
     """
     e = solar_eclipse_on("1999-08-11")
     sites = [Site(48.8566, 2.3522), Site(49.4447, 7.7690), Site(48.7758, 9.1829)]
