@@ -170,8 +170,8 @@ class GlobeTrack:
         return a if self.frame_count == 1 else a + (b - a) * int(n) / (self.frame_count - 1)
 
 
-def render_track_frame(track: GlobeTrack, n: int, palette: Palette = DEFAULT) -> np.ndarray:
-    """Frame ``n`` of ``track`` as an (H, W, 4) uint8 straight-alpha sRGB array."""
+def render_track_frame(track: GlobeTrack, n: int, palette: Palette = DEFAULT):
+    """Frame ``n`` of ``track`` as a Pillow RGBA image (straight alpha, sRGB, labels drawn)."""
     return _track_canvas(track, n, palette).to_image()
 
 
