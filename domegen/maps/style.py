@@ -23,7 +23,7 @@ class Palette:
     sea_deep: tuple = (0.05, 0.085, 0.15, 1.0)
     land: tuple = (0.44, 0.46, 0.38, 1.0)
     land_high_lat: tuple = (0.78, 0.80, 0.80, 1.0)
-    night: tuple = (0.01, 0.02, 0.075, 0.78)
+    night: tuple = (0.01, 0.02, 0.075, 0.85)
     graticule: LineStyle = LineStyle((0.85, 0.9, 1.0, 0.22), 0.8)
     equator: LineStyle = LineStyle((0.85, 0.9, 1.0, 0.42), 1.0)
     terminator: LineStyle = LineStyle((1.0, 0.93, 0.6, 0.75), 1.2, (6.0, 4.0))
