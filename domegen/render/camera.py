@@ -121,22 +121,40 @@ def direction_grid(camera: CameraSpec) -> np.ndarray:
     return out
 
 
-@functools.lru_cache(maxsize=4)
-def radius_grid(size_px: int) -> np.ndarray:
-    """Distance of each pixel centre from the frame centre in units of the circle radius, (H, W) float32."""
+def up_component_rows(camera: CameraSpec, r0: int, r1: int) -> np.ndarray:
+    """ENU z (sine of altitude) of the pixel centres of rows r0..r1, (r1-r0, W) float32 (cheap: one component)."""
+    n = camera.size_px
+    half = n / 2.0
+    u = ((np.arange(n, dtype=np.float64) + 0.5 - half) / half).astype(np.float32)
+    m = camera_basis(camera).astype(np.float32)
+    hf = np.float32(half_field_rad(camera))
+    y = u[r0:r1, None]
+    r = np.sqrt(u[None, :] ** 2 + y ** 2)
+    theta = r * hf
+    s = np.sin(theta)
+    s /= r
+    return (m[0, 2] * u[None, :]) * s + (m[1, 2] * y) * s + m[2, 2] * np.cos(theta)
+
+
+def radius_rows(size_px: int, r0: int, r1: int) -> np.ndarray:
+    """Distance of pixel centres of rows r0..r1 from the frame centre, in circle radii, (r1-r0, W) float32."""
     half = size_px / 2.0
     u = ((np.arange(size_px, dtype=np.float64) + 0.5 - half) / half).astype(np.float32)
-    r = np.sqrt(u[None, :] ** 2 + u[:, None] ** 2)
-    r.flags.writeable = False
-    return r
+    return np.sqrt(u[None, :] ** 2 + u[r0:r1, None] ** 2)
 
 
-@functools.lru_cache(maxsize=4)
+@functools.lru_cache(maxsize=2)
 def circle_alpha(size_px: int) -> np.ndarray:
     """Coverage of each pixel by the image circle, (H, W) float32: 1 inside, 0 outside, AA rim."""
-    half = size_px / 2.0
-    a = np.clip((1.0 - radius_grid(size_px)) * np.float32(half) + np.float32(0.5), 0.0, 1.0)
-    a = a.astype(np.float32)
+    half = np.float32(size_px / 2.0)
+    a = np.empty((size_px, size_px), dtype=np.float32)
+    for r0 in range(0, size_px, _CHUNK_ROWS):
+        r1 = min(size_px, r0 + _CHUNK_ROWS)
+        blk = a[r0:r1]
+        np.subtract(np.float32(1.0), radius_rows(size_px, r0, r1), out=blk)
+        blk *= half
+        blk += np.float32(0.5)
+        np.clip(blk, 0.0, 1.0, out=blk)
     a.flags.writeable = False
     return a
 

@@ -99,9 +99,10 @@ class RenderContext:
         return sky_window(self.sky_coarse, self.size, box)
 
     def window_dirs(self, box) -> np.ndarray:
-        """(h, w, 3) float64 directions of a pixel window."""
+        """(h, w, 3) float64 directions of a pixel window (computed exactly, no full grid needed)."""
         y0, y1, x0, x1 = box
-        return self.grid[y0:y1, x0:x1].astype(np.float64)
+        xx, yy = np.meshgrid(np.arange(x0, x1) + 0.5, np.arange(y0, y1) + 0.5)
+        return np.moveaxis(cam.unproject(self.spec.camera, xx, yy), 0, -1)
 
     def window_theta(self, box) -> np.ndarray:
         """(h, w) angle from the camera axis of the window's pixels, radians."""

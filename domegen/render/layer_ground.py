@@ -84,16 +84,27 @@ def load_panorama(path: str) -> tuple[np.ndarray, float]:
 @functools.lru_cache(maxsize=4)
 def ground_geometry(camera, limit_deg: float):
     """Flat indices, altitudes and azimuths (deg) of the pixels inside the image circle below ``limit_deg``."""
-    from domegen.render.camera import direction_grid, radius_grid
+    from domegen.render.camera import radius_rows, unproject, up_component_rows
 
-    grid = direction_grid(camera)
     n = camera.size_px
-    inside = radius_grid(n) <= np.float32(1.0 + 2.0 / n)
-    low = grid[..., 2] < np.float32(math.sin(math.radians(limit_deg)))
-    sel = np.flatnonzero(low & inside)
-    d = grid.reshape(-1, 3)[sel]
-    alt = np.degrees(np.arcsin(np.clip(d[:, 2], -1.0, 1.0)))
-    az = np.degrees(np.arctan2(d[:, 0], d[:, 1])) % 360.0
+    zmax = math.sin(math.radians(limit_deg))
+    sels, alts, azs = [], [], []
+    cols = np.arange(n) + 0.5
+    for r0 in range(0, n, 256):   # row bands: no full-frame direction grid needed
+        r1 = min(n, r0 + 256)
+        inside = radius_rows(n, r0, r1) <= np.float32(1.0 + 2.0 / n)
+        inside &= up_component_rows(camera, r0, r1) < np.float32(zmax + 1e-4)
+        rr, cc = np.nonzero(inside)
+        if rr.size == 0:
+            continue
+        d = unproject(camera, cols[cc], rr + r0 + 0.5)
+        low = d[2] < zmax
+        sels.append((rr[low] + r0) * n + cc[low])
+        alts.append(np.degrees(np.arcsin(np.clip(d[2, low], -1.0, 1.0))))
+        azs.append(np.degrees(np.arctan2(d[0, low], d[1, low])) % 360.0)
+    sel = np.concatenate(sels) if sels else np.zeros(0, np.int64)
+    alt = np.concatenate(alts) if alts else np.zeros(0)
+    az = np.concatenate(azs) if azs else np.zeros(0)
     for a in (sel, alt, az):
         a.flags.writeable = False
     return sel, alt, az
@@ -122,39 +133,60 @@ def horizontal_illuminance(ctx) -> float:
     return e
 
 
-def draw_ground(ctx, opacity: float) -> None:
-    if opacity <= 0:
-        return
-    pano = None
-    if ctx.layers.panorama:
-        pano, top = load_panorama(ctx.layers.panorama)
-        limit_deg = top + ctx.deg_per_px
+@functools.lru_cache(maxsize=4)
+def ground_layout(camera, seed: int, panorama: str | None, mtime: float | None):
+    """Per-camera ground pixels: flat indices (K,), coverage (K,) float32 and albedo (K, 3) float32.
+
+    A pure function of the camera and the skyline seed (or the panorama file), cached:
+    a sequence with a fixed camera pays it once.
+    """
+    if panorama:
+        pano, top = load_panorama(panorama)
+        limit_deg = top + math.degrees(math.radians(camera.field_deg) / camera.size_px)
     else:
-        limit_deg = SKYLINE_MAX_DEG
-    sel, alt, az = ground_geometry(ctx.camera, round(min(limit_deg, 90.0), 3))
-    if sel.size == 0:
-        return
-    e = horizontal_illuminance(ctx)
+        pano, limit_deg = None, SKYLINE_MAX_DEG
+    sel, alt, az = ground_geometry(camera, round(min(limit_deg, 90.0), 3))
+    deg_px = camera.field_deg / camera.size_px
     if pano is None:
-        table = skyline_table(ctx.layers.seed)
+        table = skyline_table(seed)
         t = az / 360.0 * _TABLE
         i0 = np.floor(t).astype(np.int64) % _TABLE
         w = t - np.floor(t)
         sky_h = table[i0] * (1 - w) + table[(i0 + 1) % _TABLE] * w
-        cov = np.clip((sky_h - alt) / ctx.deg_per_px + 0.5, 0.0, 1.0)
-        flat = np.clip(-alt / ctx.deg_per_px + 0.5, 0.0, 1.0)
+        cov = np.clip((sky_h - alt) / deg_px + 0.5, 0.0, 1.0)
+        flat = np.clip(-alt / deg_px + 0.5, 0.0, 1.0)
         albedo = SKYLINE_ALBEDO[None] + (GROUND_ALBEDO - SKYLINE_ALBEDO)[None] * flat[:, None]
-        rad = albedo * (e / math.pi)
     else:
         rgba = _sample(pano, az, alt)
-        cov = rgba[:, 3]
-        rad = rgba[:, :3] * (e / math.pi)
-    cov = cov * opacity
+        cov, albedo = rgba[:, 3], rgba[:, :3]
     keep = cov > 0
-    idx, cov, rad = sel[keep], cov[keep], rad[keep]
+    out = (sel[keep], cov[keep].astype(np.float32), np.ascontiguousarray(albedo[keep], dtype=np.float32))
+    for arr in out:
+        arr.flags.writeable = False
+    return out
+
+
+def draw_ground(ctx, opacity: float) -> None:
+    """Composite the opaque ground over the frame (see ground_layout), lit by horizontal_illuminance."""
+    if opacity <= 0:
+        return
+    pano = ctx.layers.panorama
+    mtime = None
+    if pano:
+        load_panorama(pano)   # errors first, with the user's path
+        mtime = os.path.getmtime(pano)
+    idx, cov, albedo = ground_layout(ctx.camera, ctx.layers.seed, pano, mtime)
+    if idx.size == 0:
+        return
+    e = horizontal_illuminance(ctx)
+    c = cov * np.float32(opacity)
+    keep = 1.0 - c
     for k in range(3):
         plane = ctx.rgb[k].reshape(-1)
-        plane[idx] = plane[idx] * (1.0 - cov) + rad[:, k] * cov
+        v = plane[idx]
+        v *= keep
+        v += albedo[:, k] * np.float32(e / math.pi) * c
+        plane[idx] = v
     ctx.info["ground_lux"] = round(e, 6)
 
 

@@ -38,22 +38,44 @@ def _chunk(kind: bytes, data: bytes) -> bytes:
     return struct.pack(">I", len(data)) + kind + data + struct.pack(">I", zlib.crc32(kind + data) & 0xFFFFFFFF)
 
 
-def encode_png(planes: np.ndarray, level: int = PNG_LEVEL) -> bytes:
-    """(C, H, W) uint8 or uint16 codes, C = 3 (RGB) or 4 (RGBA) -> PNG bytes (filter None)."""
-    c, h, w = planes.shape
-    if c not in (3, 4) or planes.dtype not in (np.uint8, np.uint16):
-        raise ValueError("planes must be (3|4, H, W) uint8/uint16")
-    depth = 8 if planes.dtype == np.uint8 else 16
+#: Rows per band of the streaming PNG writer (bounds the writer's memory to a few bands).
+PNG_BAND_ROWS = 256
+
+
+def _png_stream(h: int, w: int, c: int, depth: int, bands, level: int) -> bytes:
+    """PNG bytes from an iterator of row bands, each a list of c (rows, w) code arrays (filter None)."""
     nbytes = depth // 8
-    rows = np.empty((h, 1 + w * c * nbytes), dtype=np.uint8)
-    rows[:, 0] = 0
-    pix = rows[:, 1:].view(">u2" if depth == 16 else np.uint8).reshape(h, w, c)
-    for k in range(c):
-        pix[:, :, k] = planes[k]
+    comp = zlib.compressobj(level)
+    parts = []
+    for band in bands:
+        r = band[0].shape[0]
+        rows = np.empty((r, 1 + w * c * nbytes), dtype=np.uint8)
+        rows[:, 0] = 0
+        pix = rows[:, 1:].view(">u2" if depth == 16 else np.uint8).reshape(r, w, c)
+        for k in range(c):
+            pix[:, :, k] = band[k]
+        parts.append(comp.compress(rows))
+    parts.append(comp.flush())
     color_type = 6 if c == 4 else 2
     ihdr = struct.pack(">IIBBBBB", w, h, depth, color_type, 0, 0, 0)
     return b"".join([b"\x89PNG\r\n\x1a\n", _chunk(b"IHDR", ihdr), _chunk(b"sRGB", b"\x00"),
-                     _chunk(b"IDAT", zlib.compress(rows, level)), _chunk(b"IEND", b"")])
+                     _chunk(b"IDAT", b"".join(parts)), _chunk(b"IEND", b"")])
+
+
+def encode_png(planes, level: int = PNG_LEVEL) -> bytes:
+    """(C, H, W) uint8 or uint16 codes (an array or a list of C planes), C = 3 (RGB) or 4 (RGBA) -> PNG bytes.
+
+    Filter type 0 (None) on every row: with zlib level 1 it is the fastest
+    setting and night frames (mostly dark, smooth) compress well without prediction.
+    """
+    c = len(planes)
+    h, w = planes[0].shape
+    dtype = planes[0].dtype
+    if c not in (3, 4) or dtype not in (np.uint8, np.uint16) or any(p.shape != (h, w) for p in planes):
+        raise ValueError("planes must be (3|4, H, W) uint8/uint16")
+    depth = 8 if dtype == np.uint8 else 16
+    bands = ([p[r0:r0 + PNG_BAND_ROWS] for p in planes] for r0 in range(0, h, PNG_BAND_ROWS))
+    return _png_stream(h, w, c, depth, bands, level)
 
 
 def encode_jpeg(planes: np.ndarray, quality: int = JPEG_QUALITY) -> bytes:
@@ -111,11 +133,32 @@ def encode_frame(rendered, fmt: str = "png", bit_depth: int = 8, exposure_ev: fl
         raise InputError("JPEG is 8-bit only", field="bit_depth", value=bit_depth,
                          hint="use png for 16-bit output")
     ev = rendered.info.get("exposure_ev", 0.0) if exposure_ev is None else float(exposure_ev)
-    codes = [tonemap.tone_map_plane(rendered.rgb[k], ev, bit_depth) for k in range(3)]
     if fmt == "jpeg":
-        return encode_jpeg(np.stack(codes))
-    codes.append(tonemap.alpha_codes(rendered.alpha, bit_depth))
-    return encode_png(np.stack(codes))
+        return encode_jpeg(np.stack([tonemap.tone_map_plane(rendered.rgb[k], ev, 8) for k in range(3)]))
+    _, h, w = rendered.rgb.shape
+    alpha = _alpha_codes(rendered.alpha, bit_depth)
+
+    def bands():
+        for r0 in range(0, h, PNG_BAND_ROWS):   # tone map band by band: small, cache-friendly buffers
+            r1 = min(h, r0 + PNG_BAND_ROWS)
+            yield [tonemap.tone_map_plane(rendered.rgb[k, r0:r1], ev, bit_depth) for k in range(3)] + [alpha[r0:r1]]
+
+    return _png_stream(h, w, 4, bit_depth, bands(), PNG_LEVEL)
+
+
+_ALPHA_MEMO: dict = {}
+
+
+def _alpha_codes(alpha: np.ndarray, bit_depth: int) -> np.ndarray:
+    """Alpha codes, memoised for the (read-only, cached) image-circle coverage of a camera."""
+    if alpha.flags.writeable:
+        return tonemap.alpha_codes(alpha, bit_depth)
+    key = (id(alpha), alpha.shape, bit_depth)
+    got = _ALPHA_MEMO.get(key)
+    if got is None or got[0] is not alpha:
+        _ALPHA_MEMO.clear()
+        got = _ALPHA_MEMO[key] = (alpha, tonemap.alpha_codes(alpha, bit_depth))
+    return got[1]
 
 
 def write_frame(rendered, path, fmt: str | None = None, bit_depth: int = 8,

@@ -80,14 +80,33 @@ def _lut(bit_depth: int) -> tuple[np.ndarray, int]:
     return table, lo
 
 
+@functools.lru_cache(maxsize=1)
+def _full_lut8() -> np.ndarray:
+    """8-bit table over every float32 bit pattern >> 15 (2^17 entries): no clipping pass needed.
+
+    Negative values (sign bit set) map to 0, values above the table's top to 255.
+    """
+    table, base = _lut(8)
+    full = np.zeros(1 << 17, dtype=np.uint8)
+    full[base:base + table.size] = table
+    full[base + table.size:1 << 16] = 255
+    full.flags.writeable = False
+    return full
+
+
 def tone_map_plane(plane: np.ndarray, ev: float, bit_depth: int = 8) -> np.ndarray:
     """One (H, W) linear plane (cd/m^2, contiguous float32) -> (H, W) uint8/uint16 sRGB codes."""
     if bit_depth not in _SHIFT:
         raise ValueError("bit_depth must be 8 or 16")
-    table, base = _lut(bit_depth)
     buf = scratch("tonemap", plane.shape, np.float32)
     np.multiply(plane, np.float32(exposure_scale(ev)), out=buf)
-    np.clip(buf, np.float32(_LO), np.float32(_HI), out=buf)
+    if bit_depth == 8:
+        bits = buf.view(np.uint32)
+        np.right_shift(bits, np.uint32(15), out=bits)
+        return _full_lut8()[bits]
+    table, base = _lut(bit_depth)
+    np.maximum(buf, np.float32(_LO), out=buf)
+    np.minimum(buf, np.float32(_HI), out=buf)
     bits = buf.view(np.uint32)
     np.right_shift(bits, np.uint32(_SHIFT[bit_depth]), out=bits)
     np.subtract(bits, np.uint32(base), out=bits)

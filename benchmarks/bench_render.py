@@ -1,0 +1,93 @@
+"""Dome-frame renderer benchmark: compute vs encode vs the encode floor, 4096 and 8192 px.
+
+Night frame over the Loire Valley Science Dome (Nantes) with the default
+layers.  Per size: the direction grid (once per camera), the frame compute
+(render_frame with the instant's bodies and stars precomputed, as a sequence
+does, and into a reused buffer), the encode (tone mapping + 8-bit PNG) and
+the floor (the same PNG writer on the already tone-mapped codes).  Times are
+CPU seconds of this process (core-seconds; wall time in brackets).  Peak
+memory is the process's maximum resident set size.
+
+    /work/venv/bin/python benchmarks/bench_render.py [--sizes 4096 8192]
+"""
+
+from __future__ import annotations
+
+import argparse
+import resource
+import time
+from datetime import datetime, timezone
+
+import numpy as np
+
+
+def _timed(fn):
+    c0, w0 = time.process_time(), time.perf_counter()
+    out = fn()
+    return out, time.process_time() - c0, time.perf_counter() - w0
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--sizes", type=int, nargs="+", default=[4096, 8192])
+    args = ap.parse_args()
+    if len(args.sizes) > 1:   # one process per size, so each peak memory figure is that size's own
+        import subprocess
+        import sys
+
+        for n in args.sizes:
+            subprocess.run([sys.executable, __file__, "--sizes", str(n)], check=True)
+        return
+
+    from domegen.render import camera as cam
+    from domegen.render import tonemap
+    from domegen.render.frame import render_frame
+    from domegen.render.output import encode_frame, encode_png
+    from domegen.render.spec import CameraSpec, FrameSpec, LayerSpec
+    from domegen.sky.bodies import body_positions
+    from domegen.sky.site import Site
+    from domegen.sky.stars import star_field
+    from domegen.sky.times import unix_seconds
+
+    site = Site(47.2184, -1.5536, 20.0, timezone="Europe/Paris")
+    when = datetime(2026, 8, 12, 22, 30, tzinfo=timezone.utc)
+    layers = LayerSpec()
+    bodies, c_b, _ = _timed(lambda: body_positions(site, np.array([unix_seconds(when)])))
+    stars, c_s, _ = _timed(lambda: star_field(site, when, mag_limit=layers.star_mag_limit))
+    print(f"positions (once per instant): bodies {c_b:.3f} s, {len(stars)} stars {c_s:.3f} s")
+    # warm the sky model's caches on a small frame
+    render_frame(FrameSpec(site, when, CameraSpec(size_px=256), layers), bodies=bodies, stars=stars)
+
+    for n in args.sizes:
+        camera = CameraSpec(size_px=n)
+        spec = FrameSpec(site, when, camera, layers)
+        first, c_first, w_first = _timed(lambda: render_frame(spec, bodies=bodies, stars=stars))
+        again, c_comp, w_comp = _timed(lambda: render_frame(spec, bodies=bodies, stars=stars, out=first.rgb))
+        data, c_enc, w_enc = _timed(lambda: encode_frame(again, "png", 8))
+        ev = again.info["exposure_ev"]
+        codes = [tonemap.tone_map_plane(again.rgb[k], ev, 8) for k in range(3)] + [tonemap.alpha_codes(again.alpha, 8)]
+        info, png_mb = again.info, len(data) / 1e6
+        del first, again, data
+        _, c_floor, w_floor = _timed(lambda: encode_png(codes))
+        total = c_comp + c_enc
+        print(f"\n{n} px night frame ({info.get('stars_drawn', 0)} stars, {info['sky_model']}, "
+              f"EV {ev:+.2f}), PNG {png_mb:.1f} MB")
+        print(f"  first frame (fresh buffers)      {c_first:6.3f} s  [{w_first:.3f}]")
+        print(f"  compute (steady state)           {c_comp:6.3f} s  [{w_comp:.3f}]")
+        print(f"  encode (tone map + PNG)          {c_enc:6.3f} s  [{w_enc:.3f}]")
+        print(f"  encode floor (PNG writer only)   {c_floor:6.3f} s  [{w_floor:.3f}]")
+        print(f"  compute / floor {c_comp / c_floor:5.2f}   encode / floor {c_enc / c_floor:5.2f}   "
+              f"frame (compute + encode) {total:.3f} core-s = {total / c_floor:.2f} x floor")
+        del codes
+        peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 2 ** 20
+        print(f"  peak resident memory of render + encode {peak:.2f} GiB")
+        # the full direction grid (overlays, eclipse layers) is built once per camera, on first use
+        cam.direction_grid.cache_clear()
+        _, c_grid, w_grid = _timed(lambda: cam.direction_grid(camera))
+        print(f"  direction grid (once per camera, when used) {c_grid:6.3f} s  [{w_grid:.3f}]")
+        peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 2 ** 20
+        print(f"  peak resident memory with the grid {peak:.2f} GiB")
+
+
+if __name__ == "__main__":
+    main()
