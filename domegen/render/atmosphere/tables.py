@@ -73,21 +73,28 @@ def bilinear(table, i, j):
     """table (A, B, C) sampled at fractional indices i, j (same shape) -> shape + (C,)."""
     a, b = table.shape[:2]
     flat = table.reshape(a * b, -1)
-    i = np.clip(i, 0.0, a - 1.000001)
-    j = np.clip(j, 0.0, b - 1.000001)
+    shape = np.shape(i) + (flat.shape[1],)
+    i = np.clip(np.ravel(i), 0.0, a - 1.000001)
+    j = np.clip(np.ravel(j), 0.0, b - 1.000001)
     i0 = i.astype(np.intp)
     j0 = j.astype(np.intp)
-    fi = (i - i0).astype(table.dtype)[..., None]
-    fj = (j - j0).astype(table.dtype)[..., None]
-    k = (i0 * b + j0).ravel()
-    shape = i.shape + (flat.shape[1],)
-    t00 = np.take(flat, k, axis=0).reshape(shape)
-    t01 = np.take(flat, k + 1, axis=0).reshape(shape)
-    t10 = np.take(flat, k + b, axis=0).reshape(shape)
-    t11 = np.take(flat, k + b + 1, axis=0).reshape(shape)
-    top = t00 + (t01 - t00) * fj
-    bot = t10 + (t11 - t10) * fj
-    return top + (bot - top) * fi
+    fi = (i - i0).astype(table.dtype)
+    fj = (j - j0).astype(table.dtype)
+    gi = 1 - fi
+    gj = 1 - fj
+    k = i0 * b + j0
+    out = np.take(flat, k, axis=0)
+    out *= (gi * gj)[:, None]
+    tmp = np.take(flat, k + 1, axis=0)
+    tmp *= (gi * fj)[:, None]
+    out += tmp
+    np.take(flat, k + b, axis=0, out=tmp)
+    tmp *= (fi * gj)[:, None]
+    out += tmp
+    np.take(flat, k + b + 1, axis=0, out=tmp)
+    tmp *= (fi * fj)[:, None]
+    out += tmp
+    return out.reshape(shape)
 
 
 # ---------------------------------------------------------------- tables
