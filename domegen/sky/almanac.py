@@ -137,8 +137,12 @@ def _above_horizon_function(site, name: str, horizon_deg: float | None):
     return f
 
 
-def _find(site, kind: str, t0, t1) -> list[datetime]:
-    """All times of one kind between skyfield Times ``t0`` and ``t1``."""
+def _find(site, kind: str, t0, t1, memo: dict | None = None) -> list[datetime]:
+    """All times of one kind between skyfield Times ``t0`` and ``t1``.
+
+    ``memo`` (a dict, one per search range) lets a rising and a setting of
+    the same body and horizon share one polar altitude search.
+    """
     from skyfield import almanac
 
     from domegen.sky.ephemeris import body
@@ -151,8 +155,12 @@ def _find(site, kind: str, t0, t1) -> list[datetime]:
         finder = almanac.find_risings if what == "rise" else almanac.find_settings
         t, real = finder(site.observer(), body(name), t0, t1, horizon_degrees=horizon)
     else:
-        t, up = almanac.find_discrete(t0, t1, _above_horizon_function(site, name, horizon),
-                                      epsilon=0.5 / 86400.0)
+        memo = {} if memo is None else memo
+        key = (name, horizon)
+        if key not in memo:
+            memo[key] = almanac.find_discrete(t0, t1, _above_horizon_function(site, name, horizon),
+                                              epsilon=0.5 / 86400.0)
+        t, up = memo[key]
         real = (up == 1) if what == "rise" else (up == 0)
     if len(t.tt) == 0:
         return []
@@ -174,9 +182,9 @@ def events(site, start_utc, end_utc, kinds=None) -> list[Event]:
                          value=end.isoformat(), hint=f"start is {start.isoformat()}")
     wanted = _check_kinds(kinds)
     t0, t1 = to_time(start), to_time(end)
-    out = []
+    out, memo = [], {}
     for kind in wanted:
-        for when in _find(site, kind, t0, t1):
+        for when in _find(site, kind, t0, t1, memo):
             if start <= when < end:
                 out.append(Event(kind, when.astimezone(timezone.utc), KINDS[kind][0]))
     out.sort(key=lambda e: (e.utc, EVENT_KINDS.index(e.kind)))
