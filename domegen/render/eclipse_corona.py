@@ -111,7 +111,7 @@ def _modulation(rho, a, seed: int) -> np.ndarray:
     spa, amp, width, k, ray_amp, ray_phase, _ = _streamers(seed)
     # helmet streamers: broad at the base, narrowing to rays with height
     w = width[:, None] * (0.35 + 0.65 / rho.reshape(1, -1))
-    d = np.angle(np.exp(1j * (a.reshape(1, -1) - spa[:, None])))
+    d = (a.reshape(1, -1) - spa[:, None] + np.pi) % (2.0 * np.pi) - np.pi
     helmets = np.sum(amp[:, None] * np.exp(-0.5 * (d / w) ** 2) * np.sqrt(1.0 - 1.0 / rho.reshape(1, -1) + 0.15),
                      axis=0)
     # mean of the helmet term around a circle, to keep the Baumbach mean
@@ -136,10 +136,16 @@ def chromosphere_and_prominences(rho, pa, seed: int = 0) -> np.ndarray:
     chrom = chrom + np.where(h >= CHROMOSPHERE_THICKNESS, CHROMOSPHERE_B * np.exp(-np.minimum(tail, 50.0)), 0.0)
     *_, (ppa, ph, pw, pb) = _streamers(seed)
     out = chrom
-    for j in range(ppa.size):  # a handful of prominences, vectorised over pixels
-        d = np.angle(np.exp(1j * (a - ppa[j])))
-        top = ph[j] * np.exp(-0.5 * (d / pw[j]) ** 2 * (1.0 + 0.5 * np.sin(9.0 * d / pw[j]) ** 2))
-        inside = (h >= 0) & (h < top)
-        fade = np.exp(-np.clip(h / (0.6 * ph[j]), 0.0, 50.0))
-        out = out + np.where(inside, PROMINENCE_B * pb[j] * fade, 0.0)
+    near = np.flatnonzero((h >= 0) & (h < ph.max()))
+    if near.size:
+        hn, an = h.reshape(-1)[near], a.reshape(-1)[near]
+        prom = np.zeros(near.size)
+        for j in range(ppa.size):  # a handful of prominences, vectorised over pixels
+            d = (an - ppa[j] + np.pi) % (2.0 * np.pi) - np.pi
+            top = ph[j] * np.exp(-0.5 * (d / pw[j]) ** 2 * (1.0 + 0.5 * np.sin(9.0 * d / pw[j]) ** 2))
+            fade = np.exp(-np.clip(hn / (0.6 * ph[j]), 0.0, 50.0))
+            prom += np.where(hn < top, PROMINENCE_B * pb[j] * fade, 0.0)
+        out = np.array(out, dtype=float).reshape(-1)
+        out[near] += prom
+        out = out.reshape(h.shape)
     return out

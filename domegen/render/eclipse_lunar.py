@@ -94,7 +94,8 @@ def umbral_colour(x, danjon_L: float) -> np.ndarray:
     grey = max(0.0, 1.0 - L)               # L < 1: grey or brownish
     rgb = rgb * (1.0 - 0.6 * grey) + 0.6 * grey * np.array([1.0, 0.85, 0.7]) / 0.88
     rim = max(0.0, L - 3.0) * np.exp(-((1.0 - x) / 0.06) ** 2)
-    return rgb * (1.0 - rim[..., None]) + rim[..., None] * RIM_RGB
+    rgb = rgb * (1.0 - rim[..., None]) + rim[..., None] * RIM_RGB
+    return rgb / (rgb @ np.array([0.2126, 0.7152, 0.0722]))[..., None]
 
 
 def _site_geocentre_enu(site, utc_s: float) -> np.ndarray:
