@@ -81,10 +81,17 @@ class Equirectangular:
 
     def polygon_rings(self, lat_deg, lon_deg) -> list[np.ndarray]:
         """Rings to fill for a closed lat/lon ring, unwrapped and repeated across the seam."""
+        lat = np.asarray(lat_deg, dtype=np.float64)
         lon = np.degrees(np.unwrap(np.radians(np.asarray(lon_deg, dtype=np.float64) - self.lon0_deg)))
+        close = ((lon[0] - lon[-1]) + 180.0) % 360.0 - 180.0
+        if abs(lon[-1] + close - lon[0]) > 180.0:  # the ring goes round a pole: close it over the pole
+            pole = 90.0 if np.nanmean(lat) > 0 else -90.0
+            end = lon[-1] + close
+            lon = np.r_[lon, end, end, lon[0]]
+            lat = np.r_[lat, lat[0], pole, pole]
         x = (lon + 180.0) / 360.0 * self.width_px
         x = x - np.floor(np.nanmin(x) / self.width_px) * self.width_px
-        y = (90.0 - np.asarray(lat_deg, dtype=np.float64)) / 180.0 * self.height_px
+        y = (90.0 - lat) / 180.0 * self.height_px
         return [np.c_[x + k * self.width_px, y] for k in (-1, 0, 1)]
 
 

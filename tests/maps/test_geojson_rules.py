@@ -148,3 +148,17 @@ def test_polar_cap_ring_is_closed_over_the_pole():
     rings = split_polygon(np.full(lon.size, 70.0), lon)
     assert rings and all(signed_area(r[:-1]) > 0 for r in rings)
     assert max(r[:, 1].max() for r in rings) == 90.0
+
+
+def test_polar_path_polygon_contains_the_pole():
+    from domegen.eclipse import solar_eclipse_on
+    from domegen.eclipse.path import compute_path
+    from domegen.maps.geojson import path_geojson
+
+    e = solar_eclipse_on(dt.date(2021, 6, 10))
+    fc = path_geojson(compute_path(e, 60.0))
+    _check_rfc7946(fc)
+    rings = _geo.polygon_rings(_geo.feature(fc, "path")["geometry"])
+    # canon greatest point 80.8 N 66.8 W (NASA Five Millennium Canon) and the pole are inside
+    assert _geo.inside(rings, 80.8, -66.8) and _geo.inside(rings, 89.9, 10.0)
+    assert not _geo.inside(rings, 45.4, -75.7)  # Ottawa: partial only (common knowledge)

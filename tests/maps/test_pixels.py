@@ -172,3 +172,17 @@ def test_globe_pixel_under_the_umbra_is_dark(eclipse_2026):
     assert c.sum() < 0.5 * lit[200, 200, :3].astype(int).sum() + 5
     # far outside the penumbra (the antipode side is off the disc; take the limb near the south)
     assert np.array_equal(img[385, 200], lit[385, 200])
+
+
+def test_path_round_the_pole_fills_a_polar_band_not_the_map():
+    # 2021-06-10 annular: the central line reaches 88.3 N, so the path covers the North Pole
+    # (canon: greatest eclipse at 80.8 N, path 527 km wide).
+    from domegen.eclipse import solar_eclipse_on
+    from domegen.maps.render import render_world_map
+
+    e = solar_eclipse_on(dt.date(2021, 6, 10))
+    img = render_world_map(e, 720, overlay_only=True, lon0_deg=0.0).to_array()
+    assert img[0, :, 3].min() > 60          # top row (89.9 N) inside the band at every longitude
+    assert img[300, :, 3].max() == 0         # 60 S: nothing drawn for this northern eclipse
+    row_60n = img[int(30 / 180 * 360), :, 3]
+    assert (row_60n > 100).mean() < 0.2      # at 60 N only a short stretch is in the band
