@@ -110,12 +110,17 @@ def draw_central_line(canvas, proj, path, palette: Palette = DEFAULT, tick_s: fl
         segs = [np.array([[xi - half * a, yi - half * b], [xi + half * a, yi + half * b]])
                 for xi, yi, a, b, v in zip(x, y, nx, ny, vis) if v]
         canvas.stroke(segs, palette.tick.colour, palette.tick.width_px)
+        kept: list[tuple[float, float]] = []
         for n, (tk, xi, yi, a, b, v) in enumerate(zip(ticks, x, y, nx, ny, vis)):
             if v and label_every > 0 and n % label_every == 0:
-                hhmm = datetime.fromtimestamp(float(tk), timezone.utc).strftime("%H:%M")
                 off = 2.2 * half + label_px
-                canvas.label(xi + off * a, yi + off * b, hhmm, palette.text, label_px, "mm",
-                             palette.halo)
+                lx, ly = xi + off * a, yi + off * b
+                if any(abs(lx - kx) < 3.2 * label_px and abs(ly - ky) < 1.3 * label_px
+                       for kx, ky in kept):
+                    continue  # would overlap a label already placed
+                kept.append((lx, ly))
+                hhmm = datetime.fromtimestamp(float(tk), timezone.utc).strftime("%H:%M")
+                canvas.label(lx, ly, hhmm, palette.text, label_px, "mm", palette.halo)
 
 
 def draw_path(canvas, proj, path, palette: Palette = DEFAULT, label_px: int = 11) -> None:
