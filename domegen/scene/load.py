@@ -83,7 +83,7 @@ def load_scene(path, *, text: str | None = None) -> Scene:
     """Load and validate a scene file; every problem is a located :class:`SceneError`."""
     path = Path(path)
     tree, files = read_tree(path, text=text)
-    marks: dict = {}
+    marks: dict = {"": tree.mark}
     data = SCENE.check(tree, Ctx("", tree.mark), marks)
     try:
         return _build(path, data, marks, tuple(files))
@@ -159,7 +159,7 @@ def _build(path: Path, data: dict, marks: dict, files: tuple) -> Scene:
     shots, first, prev_end = [], 0, None
     for i, s in enumerate(data["shots"]):
         p = f"shots[{i}]"
-        shot = _shot(i, s, p, marks, data, resolver, first, prev_end, output.fps)
+        shot = _shot(i, s, p, marks, data, resolver, first, prev_end, output.fps, layer_base)
         shots.append(shot)
         first += shot.frame_count
         prev_end = shot.sky_end_s
@@ -177,7 +177,7 @@ def _midday(d):
     return datetime(d.year, d.month, d.day, 12, tzinfo=timezone.utc)
 
 
-def _shot(i, s, p, marks, data, resolver, first, prev_end, fps) -> Shot:
+def _shot(i, s, p, marks, data, resolver, first, prev_end, fps, layer_base) -> Shot:
     name = s["name"] or f"shot {i + 1}"
     dur = parse_duration(s["duration"])
     if dur <= 0:
@@ -223,8 +223,8 @@ def _shot(i, s, p, marks, data, resolver, first, prev_end, fps) -> Shot:
             raise _ctx(marks, f"{p}.sky").error(err.message, value=err.value) from None
     return Shot(index=i, name=name, duration_s=dur, first_frame=first, frame_count=nf,
                 sky_start_s=float(start), sky_end_s=float(end), sky_easing=sky["easing"],
-                camera=_camera_tracks(s["camera"], p, marks, dur),
-                layers=_layer_tracks(s["layers"], p, marks, dur))
+                camera=_camera_tracks(s["camera"], p, marks, dur, data["dome"]),
+                layers=_layer_tracks(s["layers"], p, marks, dur, layer_base))
 
 
 def _key_time(k, path, marks, dur) -> float:
@@ -234,7 +234,7 @@ def _key_time(k, path, marks, dur) -> float:
     return min(max(t, 0.0), dur)
 
 
-def _camera_tracks(keys: list, p: str, marks: dict, dur: float) -> dict:
+def _camera_tracks(keys: list, p: str, marks: dict, dur: float, dome: dict) -> dict:
     chans: dict = {}
     for j, k in enumerate(keys):
         t = _key_time(k, f"{p}.camera[{j}]", marks, dur)
@@ -246,10 +246,23 @@ def _camera_tracks(keys: list, p: str, marks: dict, dur: float) -> dict:
         elif k["look_azimuth"] is not None or k["look_altitude"] is not None:
             chans.setdefault("look", []).append(Key(t, ("dir", k["look_azimuth"], k["look_altitude"]),
                                                     k["easing"]))
-    return {n: Track(tuple(sorted(v, key=lambda key: key.t_s))) for n, v in chans.items()}
+    base = {"front_azimuth": dome["front_azimuth"], "tilt": dome["tilt"], "field": dome["field"], "roll": 0.0,
+            "look": ("dir", None, None)}
+    return _tracks(chans, base)
 
 
-def _layer_tracks(layers, p: str, marks: dict, dur: float) -> dict:
+def _tracks(chans: dict, base: dict) -> dict:
+    """Sorted tracks; a channel whose first key comes after the start moves there from its base value."""
+    out = {}
+    for name, keys in chans.items():
+        keys = sorted(keys, key=lambda key: key.t_s)
+        if keys[0].t_s > 0 and base.get(name) is not None:
+            keys.insert(0, Key(0.0, base[name], keys[0].easing))
+        out[name] = Track(tuple(keys))
+    return out
+
+
+def _layer_tracks(layers, p: str, marks: dict, dur: float, base: dict) -> dict:
     if layers is None:
         return {}
     if isinstance(layers, dict):
@@ -263,7 +276,7 @@ def _layer_tracks(layers, p: str, marks: dict, dur: float) -> dict:
         for name in LAYER_FIELDS:
             if k.get(name) is not None:
                 chans.setdefault(name, []).append(Key(t, k[name], k["easing"]))
-    return {n: Track(tuple(sorted(v, key=lambda key: key.t_s))) for n, v in chans.items()}
+    return _tracks(chans, dict(base, exposure=base.get("exposure") or "auto"))
 
 
 __all__ = ["load_scene", "read_tree"]

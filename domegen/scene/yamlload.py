@@ -132,7 +132,13 @@ def parse_text(text: str, file: str = "<scene>"):
     """Parse YAML text into :class:`Map`/:class:`Seq`/scalars; :class:`SceneError` on bad YAML."""
     if len(text) > MAX_BYTES:
         raise SceneError(f"the file is larger than {MAX_BYTES} bytes", file=file, line=1, column=1)
-    loader = yaml.SafeLoader(text)
+    try:
+        loader = yaml.SafeLoader(text)
+    except yaml.reader.ReaderError as err:
+        line = text.count("\n", 0, err.position) + 1
+        col = err.position - (text.rfind("\n", 0, err.position) + 1) + 1
+        raise SceneError(f"character {err.character!r} is not allowed in a scene file", file=file,
+                         line=line, column=col, hint="remove control characters") from None
     try:
         node = loader.get_single_node()
         if node is None:
@@ -144,8 +150,12 @@ def parse_text(text: str, file: str = "<scene>"):
         what = err.problem or err.context or "invalid YAML"
         raise SceneError(f"YAML syntax error: {what}", file=file, line=line, column=col,
                          hint="check indentation, colons and quotes") from None
+    except yaml.reader.ReaderError as err:
+        line = text.count("\n", 0, err.position) + 1
+        raise SceneError(f"character {err.character!r} is not allowed in a scene file", file=file,
+                         line=line, column=1, hint="remove control characters") from None
     except yaml.YAMLError as err:
-        raise SceneError(f"YAML error: {err}", file=file, line=1, column=1) from None
+        raise SceneError(f"YAML error: {' '.join(str(err).split())}", file=file, line=1, column=1) from None
     except RecursionError:
         raise SceneError("the file nests too deeply", file=file, line=1, column=1) from None
     finally:
