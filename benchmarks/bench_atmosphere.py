@@ -163,10 +163,13 @@ def examples(out_dir: Path, size_px: int = 1024) -> None:
     cameras = {"sunset-west": CameraSpec(size_px=size_px, field_deg=120.0, view_az_deg=round(sun_az, 1),
                                          view_alt_deg=25.0)}
     scenes["sunset-west"] = (t_set, dict(light_pollution_bortle=7))
+    burgos, t_tot = _totality()
+    scenes["totality-burgos"] = (t_tot, dict(light_pollution_bortle=4))
+    cameras["totality-burgos"] = CameraSpec(size_px=size_px, field_deg=120.0, view_az_deg=280.0, view_alt_deg=25.0)
     for name, (utc, kw) in scenes.items():
         cam = cameras.get(name, CameraSpec(size_px=size_px))
         # automatic exposure (exposure_ev None): the renderer asks the atmosphere's auto_exposure_ev
-        spec = FrameSpec(site=site, utc=utc, camera=cam,
+        spec = FrameSpec(site=burgos if name.startswith("totality") else site, utc=utc, camera=cam,
                          layers=LayerSpec(sky_model="physical", **kw, **_extra_layers()))
         t0 = time.perf_counter()
         frame = render_frame(spec)
@@ -182,6 +185,19 @@ def _extra_layers() -> dict:
         k, v = item.split("=")
         out[k.strip()] = float(v)
     return out
+
+
+def _totality():
+    """A site near Burgos in the path of the 2026-08-12 total solar eclipse and its mid-totality."""
+    from datetime import date
+
+    from domegen.eclipse.local import local_circumstances
+    from domegen.eclipse.search import solar_eclipse_on
+    from domegen.sky.site import Site
+
+    burgos = Site(lat_deg=42.34, lon_deg=-3.70, elev_m=850.0, name="near Burgos", timezone="Europe/Madrid")
+    lc = local_circumstances(solar_eclipse_on(date(2026, 8, 12)), [burgos])
+    return burgos, datetime.fromtimestamp(float(lc.utc_s["max"][0]), tz=timezone.utc)
 
 
 def _noon(site, day_utc: datetime) -> datetime:
