@@ -221,6 +221,9 @@ def main() -> None:
         out = Path(args.out)
         out.mkdir(parents=True, exist_ok=True)
         examples(out)
+        from domegen.eclipse.safety import CAUTION
+
+        print(CAUTION)  # the examples include a solar eclipse
 
 
 if __name__ == "__main__":
