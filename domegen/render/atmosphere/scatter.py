@@ -17,7 +17,7 @@ import numpy as np
 
 from . import spectrum
 from .medium import Atmosphere, cornette_shanks_phase, rayleigh_phase
-from .tables import (R_G, R_T, Tables, bilinear, dist_to_ground, dist_to_top, interp_index,
+from .tables import (R_G, Tables, bilinear, dist_to_ground, dist_to_top, interp_index,
                      march_samples, tables_for)
 
 VIEW_ALT_GRID = np.concatenate([-90.0 * np.linspace(1.0, 0.0, 25) ** 2,

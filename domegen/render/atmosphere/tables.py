@@ -18,7 +18,6 @@ from functools import lru_cache
 
 import numpy as np
 
-from . import spectrum
 from .medium import EARTH_RADIUS_M, TOP_M, Atmosphere
 
 R_G = EARTH_RADIUS_M
