@@ -206,14 +206,7 @@ def fit_elements(t0_tt_jd) -> list[BesselianElements]:
 
 
 def _tt_minus_utc_s(t) -> np.ndarray:
-    """TT - UTC in seconds (32.184 + leap seconds, or Delta T-based before 1972)."""
-    utc = t.utc
-    # POSIX seconds of the UTC calendar reading versus TT seconds.
-    from calendar import timegm
+    """TT minus domegen's civil time, s (32.184 + leap seconds from 1972; Delta T, i.e. UT1, before)."""
+    from domegen.sky.times import tt_minus_civil_s
 
-    years, months, days, hours, minutes, seconds = (np.atleast_1d(v) for v in utc)
-    posix = np.array([timegm((int(y), int(mo), int(dd), int(h), int(mi), 0))
-                      for y, mo, dd, h, mi in zip(years, months, days, hours, minutes)], dtype=float)
-    posix += seconds
-    tt_s = (np.atleast_1d(t.tt) - 2440587.5) * 86400.0
-    return tt_s - posix
+    return tt_minus_civil_s(t)

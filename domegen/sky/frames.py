@@ -32,16 +32,62 @@ def fast_time(utc_s) -> "object":
     return t
 
 
-def utc_time(utc_s):
-    """skyfield ``Time`` for POSIX UTC seconds (scalar or array), leap seconds honoured.
+#: 1972-01-01T00:00:00Z in POSIX seconds: where UTC with leap seconds begins.
+UTC_1972_S = 63_072_000.0
+_UNIX_JD = 2440587.5
 
-    The seconds are split into whole days and seconds of day so that skyfield
-    looks up TAI-UTC for each instant's own date (``ts.utc(1970, 1, 1, 0, 0, s)``
-    would apply 1970's offset to every instant).
+
+def utc_time(utc_s):
+    """skyfield ``Time`` for POSIX seconds of domegen's civil time scale (scalar or array).
+
+    From 1972 the scale is UTC with leap seconds; before 1972 it is UT1, the
+    Universal Time of eclipse canons and almanacs (skyfield would extend the
+    1972 offset backwards, putting "UTC" 45 s away from UT in 1900).  The
+    seconds are split into whole days and seconds of day so that skyfield looks
+    up TAI-UTC for each instant's own date.
     """
     s = np.asarray(utc_s, dtype=float)
-    days = np.floor(s / 86400.0)
-    return timescale().utc(1970, 1, 1 + days.astype(np.int64), 0, 0, s - days * 86400.0)
+    flat = np.atleast_1d(s)
+    ts = timescale()
+    days = np.floor(flat / 86400.0)
+    sod = flat - days * 86400.0
+    t = ts.utc(1970, 1, 1 + days.astype(np.int64), 0, 0, sod)
+    early = flat < UTC_1972_S
+    if np.any(early):
+        whole = np.array(np.broadcast_to(t.whole, flat.shape), dtype=float)
+        frac = np.array(np.broadcast_to(t.tt_fraction, flat.shape), dtype=float)
+        tu = ts.ut1(1970, 1, 1 + days[early].astype(np.int64), 0, 0, sod[early])
+        whole[early] = tu.whole
+        frac[early] = tu.tt_fraction
+        t = ts.tt_jd(whole, frac)
+    if s.ndim == 0:
+        t = ts.tt_jd(float(np.atleast_1d(t.whole)[0]), float(np.atleast_1d(t.tt_fraction)[0]))
+    return t
+
+
+def civil_seconds(t) -> np.ndarray:
+    """POSIX seconds of domegen's civil time (UTC from 1972, UT1 before) for a skyfield Time."""
+    ut1 = np.atleast_1d(np.asarray(t.ut1, dtype=float))
+    out = (ut1 - _UNIX_JD) * 86400.0
+    late = out >= UTC_1972_S
+    if np.any(late):
+        # TT - UTC = 32.184 s + leap seconds; skyfield's leap-second table gives TAI - UTC.
+        y, mo, d, h, mi, sec = (np.atleast_1d(np.asarray(v, dtype=float))[late] for v in t.utc)
+        days = _days_from_civil(y.astype(np.int64), mo.astype(np.int64), d.astype(np.int64))
+        utc = days * 86400.0 + h * 3600.0 + mi * 60.0 + sec
+        out[late] = utc
+    return out
+
+
+def _days_from_civil(y, m, d):
+    """Days since 1970-01-01 of proleptic Gregorian dates (H. Hinnant's algorithm), vectorised."""
+    y = y - (m <= 2)
+    era = np.floor_divide(y, 400)
+    yoe = y - era * 400
+    mp = (m + 9) % 12
+    doy = (153 * mp + 2) // 5 + d - 1
+    doe = yoe * 365 + yoe // 4 - yoe // 100 + doy
+    return (era * 146097 + doe - 719468).astype(float)
 
 
 def _install_interpolated_nutation(t) -> None:

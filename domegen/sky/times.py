@@ -3,6 +3,11 @@
 Inside domegen an instant is a timezone-aware ``datetime`` (for people) or a
 float of UTC seconds since 1970-01-01 (for arrays; POSIX seconds, so leap
 seconds are handled by skyfield on conversion).  TT is derived by skyfield.
+
+"UTC" before 1972 means UT1 (the Universal Time of eclipse canons and
+historical almanacs); from 1972 it is UTC with leap seconds.  Convert with
+:func:`to_time` and :func:`from_time` (never skyfield's ``from_datetime`` /
+``utc_datetime``, which extend the 1972 leap-second offset backwards).
 """
 
 from __future__ import annotations
@@ -14,7 +19,7 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 import numpy as np
 
 from domegen.errors import InputError, OutOfRangeError
-from domegen.sky.ephemeris import EPHEMERIS_END_UTC, EPHEMERIS_START_UTC, timescale
+from domegen.sky.ephemeris import EPHEMERIS_END_UTC, EPHEMERIS_START_UTC
 
 _UNIX_EPOCH = datetime(1970, 1, 1, tzinfo=timezone.utc)
 
@@ -106,12 +111,29 @@ def from_unix_seconds(s: float) -> datetime:
 
 def to_time(utc: datetime | float | np.ndarray):
     """A skyfield ``Time`` for a datetime, or for an array of POSIX UTC seconds."""
-    ts = timescale()
-    if isinstance(utc, datetime):
-        return ts.from_datetime(utc.astimezone(timezone.utc))
     from domegen.sky.frames import utc_time
 
+    if isinstance(utc, datetime):
+        return utc_time(unix_seconds(utc.astimezone(timezone.utc)))
     return utc_time(utc)
+
+
+def from_time(t) -> datetime | list[datetime]:
+    """Aware UTC datetime(s) of a skyfield Time on domegen's civil scale (UTC; UT1 before 1972)."""
+    from domegen.sky.frames import civil_seconds
+
+    secs = civil_seconds(t)
+    if np.ndim(t.tt) == 0:
+        return from_unix_seconds(secs[0])
+    return [from_unix_seconds(x) for x in secs]
+
+
+def tt_minus_civil_s(t) -> np.ndarray:
+    """TT minus domegen's civil time, seconds: 32.184 + leap seconds from 1972, Delta T before."""
+    from domegen.sky.frames import civil_seconds
+
+    tt = np.atleast_1d(np.asarray(t.tt, dtype=float))
+    return (tt - 2440587.5) * 86400.0 - civil_seconds(t)
 
 
 def tt_datetime(t) -> datetime:

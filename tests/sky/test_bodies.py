@@ -11,10 +11,10 @@ import pytest
 
 from domegen.errors import NotFoundError, OutOfRangeError
 from domegen.sky.bodies import body_positions
-from domegen.sky.ephemeris import BODY_NAMES, _data_dir, timescale
+from domegen.sky.ephemeris import BODY_NAMES, _data_dir
 from domegen.sky.refraction import refraction_apparent_deg, refraction_true_deg
 from domegen.sky.site import Site
-from domegen.sky.times import unix_seconds
+from domegen.sky.times import from_time, to_time, unix_seconds
 
 ARCSEC = 1.0 / 3600.0
 
@@ -46,8 +46,7 @@ def _astropy_altaz(site: Site, when: datetime, names):
 
     iers.conf.auto_download = False
     iers.conf.auto_max_age = None
-    ts = timescale()
-    t_sky = ts.from_datetime(when)
+    t_sky = to_time(when)
     loc = EarthLocation.from_geodetic(site.lon_deg * u.deg, site.lat_deg * u.deg, site.elev_m * u.m)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -155,3 +154,21 @@ def test_bright_limb_faces_the_sun():
 def test_bad_input_raises_domegen_errors(bad):
     with pytest.raises((OutOfRangeError, NotFoundError)):
         bad()
+
+
+def test_civil_time_is_ut1_before_1972_and_utc_after():
+    # Before 1972 "UTC" means UT (UT1), as in the NASA canons: the 1900-05-28 total eclipse's greatest
+    # eclipse is given as 14:53:59 UT, so TT minus civil time there is Delta T, not 42.184 s.
+    # From 1972 TT - UTC = 32.184 s + leap seconds (IERS Bulletin C: 37 s since 2017).
+    t1900 = to_time(datetime(1900, 5, 28, 14, 53, 59, tzinfo=timezone.utc))
+    assert (t1900.tt - t1900.ut1) * 86400 == pytest.approx(t1900.delta_t, abs=1e-3)
+    assert -3.0 < t1900.delta_t < 0.0  # Delta T in 1900 about -2 s (Morrison & Stephenson; from memory)
+    t2024 = to_time(datetime(2024, 4, 8, 18, 18, tzinfo=timezone.utc))
+    from domegen.sky.times import tt_minus_civil_s
+    assert tt_minus_civil_s(t2024)[0] == pytest.approx(69.184, abs=1e-3)
+    for when in (datetime(1900, 5, 28, 14, 53, 59, tzinfo=timezone.utc),
+                 datetime(1971, 12, 31, 23, 59, 59, tzinfo=timezone.utc),
+                 datetime(2016, 12, 31, 23, 59, 59, tzinfo=timezone.utc),
+                 datetime(2024, 4, 8, 18, 18, tzinfo=timezone.utc)):
+        back = from_time(to_time(when))
+        assert abs((back - when).total_seconds()) < 1e-3
