@@ -34,14 +34,48 @@ def data_uri(data: bytes, mime: str) -> str:
     return f"data:{mime};base64," + base64.b64encode(data).decode("ascii")
 
 
-def dome_jpeg(site, utc: datetime, camera, *, labels: bool) -> bytes:
-    """One rendered dome master as JPEG bytes (cardinal points and horizon always drawn)."""
+#: Field of the close-up views, deg; exposure of the partial-phase close-ups (as through a
+#: solar filter: the bright disc becomes a mid-tone), EV.
+CLOSEUP_FIELD_DEG = 2.0
+FILTERED_EV = -14.0
+
+
+def dome_jpeg(site, utc: datetime, camera, *, labels: bool, exposure_ev: float | None = None,
+              overlays: bool = True) -> bytes:
+    """One rendered frame as JPEG bytes (cardinal points and horizon drawn when ``overlays``)."""
     from domegen.render.frame import render_frame
     from domegen.render.output import encode_frame
     from domegen.render.spec import FrameSpec, LayerSpec
 
-    layers = LayerSpec(labels=0.8 if labels else 0.0, cardinals=0.8, horizon_line=0.4)
+    layers = LayerSpec(labels=0.8 if labels else 0.0, cardinals=0.8 if overlays else 0.0,
+                       horizon_line=0.4 if overlays else 0.0, exposure_ev=exposure_ev)
     return encode_frame(render_frame(FrameSpec(site, utc, camera, layers)), "jpeg")
+
+
+def closeups(ecl: LocalEclipse, *, size_px: int = 160) -> list[Figure]:
+    """The Sun (or Moon) seen close up at each key moment, 2 deg across.
+
+    Partial phases of a solar eclipse are exposed as through a solar filter
+    (:data:`FILTERED_EV`); totality and lunar eclipses use automatic exposure.
+    """
+    from domegen.render.spec import CameraSpec
+
+    keys = SOLAR_MOMENTS if ecl.kind == "solar" else LUNAR_MOMENTS
+    total = {"C2", "C3"} | ({"max"} if ecl.local_type == "total" else set())
+    out = []
+    for key in keys:
+        c = ecl.contact(key)
+        if c is None or c.alt_deg < -1.0:
+            continue
+        cam = CameraSpec(size_px=int(size_px), field_deg=CLOSEUP_FIELD_DEG, view_az_deg=c.az_deg,
+                         view_alt_deg=c.alt_deg)
+        filtered = ecl.kind == "solar" and key not in total
+        jpg = dome_jpeg(ecl.site, c.utc, cam, labels=False, overlays=False,
+                        exposure_ev=FILTERED_EV if filtered else None)
+        note = " (as through a solar filter)" if filtered else ""
+        out.append(Figure(f"close-{key}", f"{key}: the {ecl.body} close up{note}",
+                          data_uri(jpg, "image/jpeg")))
+    return out
 
 
 def dome_frames(ecl: LocalEclipse, *, size_px: int = 480, labels: bool = True) -> list[Figure]:
@@ -99,6 +133,7 @@ h1{font-size:1.6em;margin:0 0 .2em} h2{font-size:1.2em;margin:1.6em 0 .5em;color
 .domes{display:flex;flex-wrap:wrap;gap:14px}
 figure{margin:0;background:#121a2b;border-radius:8px;padding:8px;width:min(100%,320px)}
 figure img{width:100%;height:auto;display:block;border-radius:50%;background:#000}
+.close figure{width:min(100%,180px)}
 figure.map{width:100%} figure.map img{border-radius:4px}
 figcaption{font-size:.82em;color:#c9d3e6;margin-top:6px}
 table{border-collapse:collapse;width:100%;font-size:.9em}
@@ -120,7 +155,8 @@ def _figure(fig: Figure, cls: str = "") -> str:
 
 
 def page_html(ecl: LocalEclipse, figures: list[Figure], map_fig: Figure | None,
-              sky: list[SkyObject], *, generated_utc: datetime | None = None) -> str:
+              sky: list[SkyObject], *, close: list[Figure] = (),
+              generated_utc: datetime | None = None) -> str:
     """The page as one HTML string (UTF-8, no external references)."""
     from domegen.eclipse.safety import CAUTION
 
@@ -158,6 +194,11 @@ def page_html(ecl: LocalEclipse, figures: list[Figure], map_fig: Figure | None,
     sections = [
         ("The dome at the key moments", '<div class="domes">' + "".join(_figure(f) for f in figures)
          + "</div>"),
+    ]
+    if close:
+        sections.append((f"The {body} close up ({CLOSEUP_FIELD_DEG:.0f}\u00b0 field)",
+                         '<div class="domes close">' + "".join(_figure(f) for f in close) + "</div>"))
+    sections += [
         (f"Cues ({tz})",
          f"<table><tr><th>Cue</th><th>Local time</th><th>UTC</th><th>From start</th>"
          f"<th>{body} alt</th><th>{body} az</th><th>What happens</th></tr>{rows}</table>"),
@@ -196,5 +237,6 @@ def build_preview(ecl: LocalEclipse, *, size_px: int = 480, map_width_px: int = 
                   generated_utc: datetime | None = None) -> str:
     """Render the frames and the map and return the page's HTML."""
     figures = dome_frames(ecl, size_px=size_px)
+    close = closeups(ecl, size_px=max(96, size_px // 3))
     return page_html(ecl, figures, track_map(ecl, width_px=map_width_px),
-                     sky_at_maximum(ecl), generated_utc=generated_utc)
+                     sky_at_maximum(ecl), close=close, generated_utc=generated_utc)

@@ -59,14 +59,23 @@ def test_page_is_self_contained(page):
     assert all(r.startswith("data:") for r in p.refs)
     assert not re.search(r"(?i)\b(src|href)\s*=\s*[\"']?(https?:|//)", text)
     # C1, C2, max, C3, C4 are all seen from Burgos (totality ~1 min 44 s with the Sun ~8 deg up)
-    assert [i for i in p.ids if i.startswith("fig-")] == ["fig-C1", "fig-C2", "fig-max", "fig-C3",
-                                                          "fig-C4", "fig-map"]
+    figs = [i for i in p.ids if i.startswith("fig-")]
+    assert figs == ["fig-C1", "fig-C2", "fig-max", "fig-C3", "fig-C4",
+                    # close-ups: C4 is skipped, the Sun is 1.1 deg below the horizon then
+                    "fig-close-C1", "fig-close-C2", "fig-close-max", "fig-close-C3", "fig-map"]
     for img in p.imgs[:5]:
         im = _decode(img["src"])
         assert im.size == (SIZE, SIZE)
         arr = np.asarray(im.convert("RGB"), dtype=float)
         assert arr.std() > 3.0  # a picture, not a flat fill
-    assert _decode(p.imgs[5]["src"]).size[0] == 480
+    # at mid-totality the close-up shows a dark lunar disc in a bright corona: the centre is
+    # much darker than a ring around it
+    mid = np.asarray(_decode(p.imgs[7]["src"]).convert("L"), dtype=float)
+    n = mid.shape[0]
+    yy, xx = np.mgrid[:n, :n] - (n - 1) / 2
+    r = np.hypot(yy, xx) / n  # the Moon is ~0.27 of the 2 deg field across: radius ~0.13
+    assert mid[r < 0.08].mean() + 20 < mid[(r > 0.16) & (r < 0.22)].mean()
+    assert _decode(p.imgs[-1]["src"]).size[0] == 480
     assert CAUTION in text.replace("&#x27;", "'")
     assert "CEST" in text and "Second contact (totality begins)" in text
 
