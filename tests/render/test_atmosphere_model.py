@@ -126,3 +126,12 @@ def test_totality_sky_with_a_synthetic_umbra():
     mag = cd_m2_to_mag_arcsec2(ecl)
     assert 11.7 < mag[0] < 14.0, mag
     assert np.all(ecl[1:] > 2.0 * ecl[0])
+
+
+def test_dimmed_sky_raises_the_automatic_exposure():
+    # Daytime-stars show technique: a sky dimmed by 1e-4 is exposed like a twilight sky, not like day.
+    day = sun_light(50.0)
+    full = auto_exposure_ev(day)
+    dimmed = auto_exposure_ev(day, dimming=1e-4)
+    assert dimmed > full + 8.0
+    assert dimmed == auto_exposure_ev(day, dimming=1e-4)
