@@ -217,7 +217,19 @@ def _ortho_grid(size, lat0, lon0, frac):
 
 @functools.lru_cache(maxsize=4)
 def _ortho_latlon(size, lat0, lon0, frac):
-    lat, lon = direction_to_geodetic(_ortho_grid(size, lat0, lon0, frac))
+    """float32 (H, W) geodetic lat/lon of the globe pixels (NaN off the disc), component-wise."""
+    c = 0.5 * size
+    r = 0.5 * frac * size
+    s = ((np.arange(size) + 0.5 - c) / r).astype(np.float32)
+    e = s[None, :]
+    n = -s[:, None]
+    u = np.sqrt(np.where(e * e + n * n <= 1.0, 1.0 - e * e - n * n, np.nan)).astype(np.float32)
+    b = _ortho_basis(lat0, lon0).astype(np.float32)
+    vx = e * b[0, 0] + n * b[1, 0] + u * b[2, 0]
+    vy = e * b[0, 1] + n * b[1, 1] + u * b[2, 1]
+    vz = e * b[0, 2] + n * b[1, 2] + u * b[2, 2]
+    lat = np.degrees(np.arctan2(vz, np.float32(1.0 - WGS84_E2) * np.hypot(vx, vy)))
+    lon = np.degrees(np.arctan2(vy, vx))
     lat.setflags(write=False)
     lon.setflags(write=False)
     return lat, lon

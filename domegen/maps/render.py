@@ -150,14 +150,10 @@ class GlobeTrack:
     stamp: bool = True
 
     def eclipse(self):
-        from domegen.eclipse import solar_eclipse_on
-        from domegen.sky.times import parse_date
-
-        return solar_eclipse_on(parse_date(self.eclipse_date, field="eclipse"))
+        return _eclipse_on(self.eclipse_date)
 
     def span_utc_s(self) -> tuple[float, float]:
-        e = self.eclipse()
-        p = shadow.contact_span_utc_s(e, "penumbra")
+        p = _penumbra_span(self.eclipse_date)
         a = self.start_utc_s if self.start_utc_s is not None else p[0]
         b = self.end_utc_s if self.end_utc_s is not None else p[1]
         return float(a), float(b)
@@ -168,6 +164,19 @@ class GlobeTrack:
                                   value=n)
         a, b = self.span_utc_s()
         return a if self.frame_count == 1 else a + (b - a) * int(n) / (self.frame_count - 1)
+
+
+@functools.lru_cache(maxsize=16)
+def _eclipse_on(date_text: str):
+    from domegen.eclipse import solar_eclipse_on
+    from domegen.sky.times import parse_date
+
+    return solar_eclipse_on(parse_date(date_text, field="eclipse"))
+
+
+@functools.lru_cache(maxsize=16)
+def _penumbra_span(date_text: str):
+    return shadow.contact_span_utc_s(_eclipse_on(date_text), "penumbra")
 
 
 def render_track_frame(track: GlobeTrack, n: int, palette: Palette = DEFAULT):
