@@ -24,12 +24,16 @@ from domegen.render.context import RenderContext
 from domegen.render.sky_gradient import mag_arcsec2_to_cd_m2, sky_model_named
 from domegen.render.sky_model import SkyLight
 from domegen.render.spec import FrameSpec
-from domegen.render.tonemap import auto_exposure_ev
+from domegen.render.tonemap import auto_exposure_ev, exposure_scale
 
 #: Bortle class -> zenith brightness mag/arcsec^2 (mid-points of the usual SQM ranges; classes 4-9 approximate).
 BORTLE_MAG_ARCSEC2 = {1: 21.85, 2: 21.6, 3: 21.4, 4: 20.85, 5: 19.75, 6: 18.55, 7: 18.2, 8: 17.8, 9: 17.3}
 #: The user's cap on a frame's working memory, GiB (default: 80 % of the memory available).
 MEMORY_ENV = "DOMEGEN_MAX_MEMORY_GB"
+#: Automatic exposure follows a Sun or Moon disk covering more than this share of the frame ...
+CLOSE_UP_SHARE = 0.02
+#: ... putting the disk's bright part (75th percentile of lit pixels) at this display-linear value.
+DISK_DISPLAY = 0.55
 _HOOK_MODULES = ("domegen.render.eclipse_solar", "domegen.render.eclipse_lunar")
 
 
@@ -295,6 +299,13 @@ def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, ou
     layer_bodies.draw_moon(ctx, layers.moon)
     for hook in _hooks(mods, "paint"):
         hook(ctx)
+    disk = ctx.info.pop("disk_exposure", None)
+    if layers.exposure_ev is None and disk and disk["share"] > CLOSE_UP_SHARE:
+        # a close-up: expose the resolved disk (its bright part near DISK_DISPLAY), not the sky
+        ev = math.log2(DISK_DISPLAY / (disk["luminance_cd_m2"] * exposure_scale(0.0)))
+        ctx.exposure_ev = float(ev)
+        ctx.info["exposure_ev"] = round(float(ev), 4)
+        ctx.info["exposure_from"] = "disk"
     layer_ground.draw_ground(ctx, layers.ground)
     layer_overlays.draw_overlays(ctx)
     alpha = cam.circle_alpha(n)

@@ -150,6 +150,7 @@ def draw_sun(ctx, opacity: float) -> None:
             rad = shade * (e_rgb / total)[None, None, :]
             for k in range(3):
                 ctx.rgb[k, y0:y1, x0:x1] += rad[..., k].astype(np.float32)
+            _note_disk(ctx, rad, cov)
     if ctx.light.sun_alt_deg > -1.0:
         _draw_glare(ctx, c, e_rgb * GLARE_FRACTION)
 
@@ -222,6 +223,20 @@ def draw_moon(ctx, opacity: float) -> None:
     ctx.info["moon"] = {"illuminated_fraction": round(float(b.illuminated_fraction[i, 0]), 5),
                         "phase_angle_deg": round(float(b.phase_angle_deg[i, 0]), 3),
                         "radius_px": round(r / ctx.rad_per_px, 3)}
+    _note_disk(ctx, rad, cov)
+
+
+def _note_disk(ctx, rad, cov) -> None:
+    """Record the brightest resolved disk's share of the frame and its lit luminance (for auto exposure)."""
+    lum = rad @ _LUMA
+    lit = lum > 0.02 * float(lum.max()) if lum.size else lum
+    if not np.any(lit):
+        return
+    share = float(cov.sum()) / ctx.size ** 2
+    typical = float(np.percentile(lum[lit], 75)) / max(float(np.mean(cov[lit])), 1e-6)
+    best = ctx.info.get("disk_exposure")
+    if best is None or typical > best["luminance_cd_m2"]:
+        ctx.info["disk_exposure"] = {"share": round(share, 5), "luminance_cd_m2": typical}
 
 
 def draw_planets(ctx, opacity: float) -> None:

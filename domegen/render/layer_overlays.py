@@ -86,11 +86,6 @@ def draw_overlays(ctx) -> None:
         g = ctx.grid
         z = g[..., 2]
         alt = np.degrees(np.arcsin(np.clip(z, -1.0, 1.0)))
-        if op["horizon_line"] > 0:
-            _composite_line(ctx, np.abs(alt), "horizon_line", op["horizon_line"])
-        if op["meridian"] > 0:
-            _composite_line(ctx, np.degrees(np.arcsin(np.minimum(np.abs(g[..., 0]), 1.0))), "meridian",
-                            op["meridian"])
         if op["grid_altaz"] > 0:
             az = np.degrees(np.arctan2(g[..., 0], g[..., 1]))
             d_alt = _nearest(alt, GRID_ALT_STEP_DEG)
@@ -102,6 +97,12 @@ def draw_overlays(ctx) -> None:
             r = _eq_rotation(ctx).astype(np.float32)   # equatorial -> ENU
             ez = g @ r[:, 2]
             dec = np.degrees(np.arcsin(np.clip(ez, -1.0, 1.0)))
+            if op["grid_equatorial"] > 0:
+                ra = np.degrees(np.arctan2(g @ r[:, 1], g @ r[:, 0]))
+                d_dec = _nearest(dec, GRID_ALT_STEP_DEG)
+                d_ra = _nearest(ra, 15.0 * GRID_RA_STEP_H) * np.cos(np.radians(dec))
+                d_ra = np.where(np.abs(dec) > 80.0, 90.0, d_ra)
+                _composite_line(ctx, np.minimum(d_dec, d_ra), "grid_equatorial", op["grid_equatorial"])
             if op["equator"] > 0:
                 _composite_line(ctx, np.abs(dec), "equator", op["equator"])
             if op["ecliptic"] > 0:
@@ -109,12 +110,11 @@ def draw_overlays(ctx) -> None:
                 pole = r @ np.array([0.0, -math.sin(eps), math.cos(eps)], dtype=np.float32)
                 _composite_line(ctx, np.degrees(np.arcsin(np.minimum(np.abs(g @ pole), 1.0))), "ecliptic",
                                 op["ecliptic"])
-            if op["grid_equatorial"] > 0:
-                ra = np.degrees(np.arctan2(g @ r[:, 1], g @ r[:, 0]))
-                d_dec = _nearest(dec, GRID_ALT_STEP_DEG)
-                d_ra = _nearest(ra, 15.0 * GRID_RA_STEP_H) * np.cos(np.radians(dec))
-                d_ra = np.where(np.abs(dec) > 80.0, 90.0, d_ra)
-                _composite_line(ctx, np.minimum(d_dec, d_ra), "grid_equatorial", op["grid_equatorial"])
+        if op["horizon_line"] > 0:
+            _composite_line(ctx, np.abs(alt), "horizon_line", op["horizon_line"])
+        if op["meridian"] > 0:
+            _composite_line(ctx, np.degrees(np.arcsin(np.minimum(np.abs(g[..., 0]), 1.0))), "meridian",
+                            op["meridian"])
     if op["cardinals"] > 0:
         _cardinals(ctx, op["cardinals"])
     if op["labels"] > 0:
@@ -126,9 +126,10 @@ def _text_px(ctx, size_deg: float, frac_max: float = 0.012) -> int:
     return int(max(10, min(size_deg / ctx.deg_per_px, frac_max * ctx.size)))
 
 
-def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0) -> None:
+def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0, keep_inside: bool = True) -> None:
     x, y, theta = ctx.project(np.asarray(enu, dtype=float))
-    if not ctx.in_circle(theta):
+    margin = -(offset_px + 2.5 * size_px) * ctx.rad_per_px if keep_inside else 0.0
+    if not ctx.in_circle(theta, margin):
         return
     x, y = float(x), float(y)
     if ctx.camera.free_view:
@@ -146,7 +147,7 @@ def _cardinals(ctx, opacity: float) -> None:
     for name, az in (("N", 0.0), ("E", 90.0), ("S", 180.0), ("W", 270.0)):
         a = math.radians(az)
         _place(ctx, [math.cos(alt) * math.sin(a), math.cos(alt) * math.cos(a), math.sin(alt)], name, size, col,
-               opacity)
+               opacity, keep_inside=False)
 
 
 def _labels(ctx, opacity: float) -> None:
