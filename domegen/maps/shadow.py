@@ -14,7 +14,10 @@ from __future__ import annotations
 import numpy as np
 
 from domegen.eclipse import geometry as geo
-from domegen.eclipse.local import _obscuration
+try:  # public name once the solar engine exports it
+    from domegen.eclipse.local import obscuration as _obscuration
+except ImportError:  # pragma: no cover - depends on the engine version
+    from domegen.eclipse.local import _obscuration
 from domegen.eclipse.solar import SolarEclipse, theta_deg
 
 

@@ -186,3 +186,32 @@ def test_path_round_the_pole_fills_a_polar_band_not_the_map():
     assert img[300, :, 3].max() == 0         # 60 S: nothing drawn for this northern eclipse
     row_60n = img[int(30 / 180 * 360), :, 3]
     assert (row_60n > 100).mean() < 0.2      # at 60 N only a short stretch is in the band
+
+
+def test_globe_seen_from_the_sun_is_all_day(eclipse_2026):
+    # Centred on the subsolar point, the whole visible hemisphere is lit: no night darkening
+    # anywhere well inside the limb (the terminator is the limb itself; geometry, common practice).
+    from domegen.maps import basemap
+    from domegen.maps.projection import Orthographic
+
+    lat, lon = basemap.subsolar_point(eclipse_2026.greatest_utc)
+    proj = Orthographic(200, lat, lon)
+    night = basemap.night_alpha(proj, eclipse_2026.greatest_utc)
+    yy, xx = np.mgrid[0:200, 0:200]
+    inner = np.hypot(xx + 0.5 - 100, yy + 0.5 - 100) < 0.8 * proj.radius_px
+    assert night[inner].max() == 0.0
+    # and seen from the opposite side it is all night
+    anti = Orthographic(200, -lat, lon + 180.0)
+    assert basemap.night_alpha(anti, eclipse_2026.greatest_utc)[inner].min() > 0.99
+
+
+def test_bad_globe_centre_is_refused(eclipse_2026):
+    from domegen.errors import InputError, OutOfRangeError
+    from domegen.maps.render import render_globe
+
+    with pytest.raises(InputError):
+        render_globe(eclipse_2026, 64, centre="moon")
+    with pytest.raises(OutOfRangeError):
+        render_globe(eclipse_2026, 64, centre=(95.0, 0.0))
+    with pytest.raises(OutOfRangeError):
+        render_globe(eclipse_2026, 9000)
