@@ -88,10 +88,13 @@ def dome_frames(ecl: LocalEclipse, *, size_px: int = 480, labels: bool = True) -
     keys = SOLAR_MOMENTS if ecl.kind == "solar" else LUNAR_MOMENTS
     mx = ecl.contact("max")
     camera = CameraSpec(size_px=int(size_px), front_az_deg=round(mx.az_deg, 1))
-    # star names only where stars can show: totality (solar) or any lunar moment
+    # star names only where stars can show: totality, or the Sun below -6 deg (twilight's end)
+    from domegen.educator.eclipses import _altaz
+
     dark = {"C2", "C3"} | ({"max"} if ecl.local_type == "total" else set())
-    if ecl.kind == "lunar":
-        dark = set(keys)
+    present = [c for c in ecl.contacts if c.key in keys]
+    sun_alt, _ = _altaz(ecl.site, "Sun", [c.utc for c in present])
+    dark |= {c.key for c, a in zip(present, sun_alt) if a < -6.0}
     tz = ecl.site.timezone
     out = []
     for key in keys:
