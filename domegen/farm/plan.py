@@ -12,7 +12,7 @@ from domegen.farm.manifest import Manifest, params_hash
 from domegen.farm.worker import DEFAULT_PRODUCER, FrameJob
 
 #: Typical size of an encoded frame relative to its raw samples (dark dome masters compress well).
-_RATIO = {"png": 0.5, "jpeg": 0.08, "exr": 1.0}
+_RATIO = {"png": 0.25, "jpeg": 0.08, "exr": 1.0}
 #: Space left free on the disk after the estimate, bytes.
 DISK_MARGIN_BYTES = 64 * 2**20
 

@@ -24,6 +24,8 @@ from domegen.farm.worker import DEFAULT_PRODUCER, ignore_sigint, run_chunk, run_
 
 #: Temporary files older than this (s) are leftovers of killed runs and are removed.
 STALE_TMP_S = 3600.0
+#: After this many frames the disk estimate is redone from their real sizes.
+_RECHECK_AFTER = 4
 
 
 @dataclass
@@ -109,6 +111,10 @@ def render_scene(scene, *, frames=None, workers: int | None = None, scale: float
             report.worker_s += res.total_s
             report.results.append(res)
             progress.advance()
+            if report.rendered == _RECHECK_AFTER and not skip_space_check:
+                # the first frames' real sizes replace the pixel-count guess
+                left = [j for j in todo if j.frame not in manifest.records]
+                check_disk(root, estimate_bytes(left, manifest))
     except KeyboardInterrupt:
         report.interrupted = True
     finally:
@@ -128,9 +134,22 @@ def _inline(jobs):
         yield run_job(j)
 
 
+#: One math-library thread per worker process: the processes already fill the cores.
+_THREAD_VARS = ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS")
+
+
 def _pool(jobs, workers: int):
     ctx = multiprocessing.get_context("spawn")
-    pool = ctx.Pool(workers, initializer=ignore_sigint)
+    saved = {k: os.environ.get(k) for k in _THREAD_VARS}
+    os.environ.update({k: "1" for k in _THREAD_VARS})
+    try:
+        pool = ctx.Pool(workers, initializer=ignore_sigint)  # children copy the environment now
+    finally:
+        for k, v in saved.items():
+            if v is None:
+                os.environ.pop(k, None)
+            else:
+                os.environ[k] = v
     try:
         yield from pool.imap_unordered(run_job, jobs, chunksize=1)
         pool.close()

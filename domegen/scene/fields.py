@@ -256,6 +256,8 @@ class ListOf(Field):
         if self.min_items:
             out["minItems"] = self.min_items
         out["maxItems"] = self.max_items
+        if isinstance(self.item, Text):  # one text stands for a list of one
+            return {"anyOf": [self.item.json(), out]}
         return out
 
 

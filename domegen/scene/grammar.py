@@ -51,7 +51,7 @@ LUNAR_EVENTS = {
     "totality end": "U3", "partial end": "U4", "penumbral end": "P4",
     "maximum": "greatest", "greatest eclipse": "greatest",
 }
-_EVENT_NAMES = sorted(set(DAY_EVENTS) | set(SOLAR_EVENTS) | set(LUNAR_EVENTS), key=len, reverse=True)
+_EVENT_NAMES = sorted(set(DAY_EVENTS) | set(SOLAR_EVENTS) | set(LUNAR_EVENTS), key=lambda n: (-len(n), n))
 _EVENT_RE = "|".join(n.replace(" ", r"\s+") for n in _EVENT_NAMES)
 ISO_RE = (r"\d{4}-\d{2}-\d{2}(?:[Tt ]\d{1,2}:\d{2}(?::\d{2}(?:\.\d+)?)?)?"
           r"(?:\s*(?:[zZ]|[+-]\d{2}(?::?\d{2})?))?")

@@ -69,8 +69,8 @@ def test_estimate_uses_pixels_then_measured_sizes(tmp_path):
     scene = load_scene(write_scene(tmp_path, size=1024))
     jobs = build_jobs(scene, list(range(8)))
     m = Manifest(tmp_path)
-    # RGBA 8-bit PNG at 1024 px: 4 MiB raw, half of it assumed after compression
-    assert estimate_bytes(jobs, m) == 8 * 1024 * 1024 * 4 // 2
+    # RGBA 8-bit PNG at 1024 px: 4 MiB raw, a quarter of it assumed after compression
+    assert estimate_bytes(jobs, m) == 8 * 1024 * 1024 * 4 // 4
     m.records[0] = FrameRecord(0, "f_000.png", "p", "h", 1000)
     assert estimate_bytes(jobs, m) == int(8 * 1200)
 
