@@ -173,11 +173,14 @@ def sky_light(spec: FrameSpec, bodies) -> SkyLight:
     from domegen.render.layer_bodies import lux_from_v
 
     s, m = bodies.index("Sun"), bodies.index("Moon")
+    from domegen.render.layer_overlays import ecliptic_pole_enu
+
     return SkyLight(
         sun_enu=np.asarray(bodies.enu[s, :, 0], dtype=float), sun_alt_deg=float(bodies.alt_deg[s, 0]),
         moon_enu=np.asarray(bodies.enu[m, :, 0], dtype=float), moon_alt_deg=float(bodies.alt_deg[m, 0]),
         moon_illuminance_lux=float(lux_from_v(bodies.magnitude[m, 0])), site_elev_m=spec.site.elev_m,
-        light_pollution_mag_arcsec2=light_pollution_mag(spec.layers))
+        light_pollution_mag_arcsec2=light_pollution_mag(spec.layers),
+        extra={"ecliptic_pole_enu": ecliptic_pole_enu(spec.site, float(bodies.utc_s[0]))})
 
 
 def coarse_size(size_px: int) -> int:

@@ -10,6 +10,7 @@ intended brightness whatever the sky.
 
 from __future__ import annotations
 
+import functools
 import math
 
 import numpy as np
@@ -72,10 +73,24 @@ def _nearest(v: np.ndarray, step: float) -> np.ndarray:
 
 
 def _eq_rotation(ctx) -> np.ndarray:
-    from domegen.sky.bodies import equatorial_to_enu
     from domegen.sky.times import unix_seconds
 
-    return equatorial_to_enu(ctx.spec.site, np.array([unix_seconds(ctx.spec.utc)]))[:, :, 0]
+    return _equatorial_to_enu(ctx.spec.site, float(unix_seconds(ctx.spec.utc)))
+
+
+@functools.lru_cache(maxsize=8)
+def _equatorial_to_enu(site, utc_s: float) -> np.ndarray:
+    from domegen.sky.bodies import equatorial_to_enu
+
+    r = equatorial_to_enu(site, np.array([utc_s]))[:, :, 0]
+    r.flags.writeable = False
+    return r
+
+
+def ecliptic_pole_enu(site, utc_s: float) -> np.ndarray:
+    """Unit vector (3,) of the north ecliptic pole in the site's ENU frame (mean obliquity of J2000)."""
+    eps = math.radians(OBLIQUITY_DEG)
+    return _equatorial_to_enu(site, utc_s) @ np.array([0.0, -math.sin(eps), math.cos(eps)])
 
 
 def draw_overlays(ctx) -> None:
@@ -141,28 +156,47 @@ def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0, keep_inside:
 
 
 def _cardinals(ctx, opacity: float) -> None:
+    col = _colour(ctx, "cardinals", 0.9)
+    for name, enu, size in _cardinal_dirs(ctx):
+        _place(ctx, enu, name, size, col, opacity, keep_inside=False)
+
+
+def _cardinal_dirs(ctx):
+    """(name, ENU direction, text size px) of the four cardinal letters, just above the horizon."""
     size = _text_px(ctx, CARDINAL_SIZE_DEG, 0.022)
     alt = math.radians(1.5 + 0.6 * size * ctx.deg_per_px)
-    col = _colour(ctx, "cardinals", 0.9)
-    for name, az in (("N", 0.0), ("E", 90.0), ("S", 180.0), ("W", 270.0)):
-        a = math.radians(az)
-        _place(ctx, [math.cos(alt) * math.sin(a), math.cos(alt) * math.cos(a), math.sin(alt)], name, size, col,
-               opacity, keep_inside=False)
+    return [(name, np.array([math.cos(alt) * math.sin(math.radians(az)), math.cos(alt) * math.cos(math.radians(az)),
+                             math.sin(alt)]), size)
+            for name, az in (("N", 0.0), ("E", 90.0), ("S", 180.0), ("W", 270.0))]
 
 
 def _labels(ctx, opacity: float) -> None:
     size = _text_px(ctx, LABEL_SIZE_DEG)
     col = _colour(ctx, "labels", 0.8)
+    if ctx.layers.cardinals > 0:
+        keep_off = []
+        for _, enu, s in _cardinal_dirs(ctx):
+            x, y, theta = ctx.project(enu)
+            if ctx.in_circle(theta):
+                keep_off.append((float(x), float(y), 2.5 * s + 3 * size))
+    else:
+        keep_off = []
+
+    def clear(enu) -> bool:
+        x, y, _ = ctx.project(np.asarray(enu, dtype=float))
+        return all(math.hypot(float(x) - cx, float(y) - cy) > r for cx, cy, r in keep_off)
+
     b = ctx.bodies
     for entry in ctx.info.get("bodies", []):
         i = b.index(entry["name"])
         r_px = math.radians(float(b.angular_radius_deg[i, 0])) / ctx.rad_per_px
-        _place(ctx, b.enu_refracted[i, :, 0], entry["name"], size, col, opacity, offset_px=r_px + 0.9 * size + 3)
+        if clear(b.enu_refracted[i, :, 0]):
+            _place(ctx, b.enu_refracted[i, :, 0], entry["name"], size, col, opacity, offset_px=r_px + 0.9 * size + 3)
     sf = ctx.stars
     if sf is None:
         return
     bright = np.flatnonzero((sf.vmag < LABEL_MAG_LIMIT) & (sf.alt_deg > 0))
     for j in bright:  # a few dozen names at most
         name = STAR_NAMES.get(int(sf.hip[j]))
-        if name:
+        if name and clear(sf.enu[:, j]):
             _place(ctx, sf.enu[:, j], name, size, col, opacity, offset_px=0.9 * size + 4)

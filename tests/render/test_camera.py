@@ -84,14 +84,14 @@ def _astropy_apparent_altaz(site, when, names):
     from astropy.time import Time
     from astropy.utils import iers
 
-    from domegen.sky.ephemeris import timescale
+    from domegen.sky.times import to_time
 
     iers.conf.auto_download = False
     iers.conf.auto_max_age = None
     import skyfield_data
 
     bsp = os.path.join(os.path.dirname(skyfield_data.__file__), "data", "de421.bsp")
-    t_sky = timescale().from_datetime(when)
+    t_sky = to_time(when)
     loc = EarthLocation.from_geodetic(site.lon_deg * u.deg, site.lat_deg * u.deg, site.elev_m * u.m)
     out = {}
     with warnings.catch_warnings():
