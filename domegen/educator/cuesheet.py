@@ -168,6 +168,7 @@ def cue_sheet_markdown(ecl: LocalEclipse, sky: list[SkyObject] | None = None) ->
                      f"duration of {'totality' if ecl.global_type == 'total' else 'the partial phase'}: "
                      f"{_duration(ecl.duration_s)}")
     first, last = ecl.contacts[0], ecl.contacts[-1]
+    lines.append(f"- From this site: {ecl.seen_text}")
     lines.append(f"- Whole eclipse: {_duration((last.utc - first.utc).total_seconds())} "
                  f"({_clock(first.utc, tz)} to {_clock(last.utc, tz)})")
     lines += ["", "## Cues", "",

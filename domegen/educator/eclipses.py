@@ -95,9 +95,30 @@ class LocalEclipse:
             t += f", umbral magnitude {self.magnitude:.3f}"
         return t
 
+    @property
+    def seen_text(self) -> str:
+        """What of the eclipse the site sees, in words ("the Sun sets before C4", ...)."""
+        if not self.contacts:
+            return "not seen from here"
+        first, last = self.contacts[0], self.contacts[-1]
+        body = self.body
+        if first.alt_deg > 0 and last.alt_deg > 0:
+            where = "seen from start to end"
+        elif first.alt_deg > 0:
+            gone = next(c for c in self.contacts if c.alt_deg <= 0)
+            where = f"the {body} sets during the eclipse, before {gone.key}"
+        elif last.alt_deg > 0:
+            up = next(c for c in self.contacts if c.alt_deg > 0)
+            where = f"the {body} rises already eclipsed, before {up.key}"
+        elif any(c.alt_deg > 0 for c in self.contacts):
+            where = f"the {body} is up only for part of the eclipse"
+        else:
+            where = f"the {body} is below the horizon throughout"
+        return where
+
     def as_json(self) -> dict:
         tz = self.site.timezone
-        return {"kind": self.kind, "type": self.global_type, "local_type": self.local_type,
+        return {"kind": self.kind, "seen": self.seen_text, "type": self.global_type, "local_type": self.local_type,
                 "title": self.title, "site": self.site.as_json(),
                 "greatest_utc": iso_utc(self.greatest_utc),
                 "magnitude": None if self.magnitude is None else round(self.magnitude, 4),
@@ -115,6 +136,7 @@ class LocalEclipse:
                         best_utc=mx.utc if mx.alt_deg > 0 else None,
                         best_alt_deg=mx.alt_deg if mx.alt_deg > 0 else None,
                         details={"type": self.global_type, "local_type": self.local_type,
+                                 "seen": self.seen_text,
                                  "magnitude": self.magnitude, "obscuration": self.obscuration,
                                  "duration_s": self.duration_s,
                                  "contacts": {c.key: iso_utc(c.utc) for c in self.contacts}})

@@ -51,6 +51,8 @@ def events_text(events: list[SkyEvent], site: Site) -> str:
         span = ""
         if ev.start_utc is not None and ev.end_utc is not None:
             span = f" [{_local_text(ev.start_utc, tz)[11:]} - {_local_text(ev.end_utc, tz)[11:]}]"
+            if ev.details.get("seen"):
+                span += f"; {ev.details['seen']}"
         lines.append(f"{_local_text(ev.utc, tz):<22} {iso_utc(ev.utc):<21} {ev.title}{span}  "
                      f"({alt}{best})")
     if any(ev.kind == "solar_eclipse" for ev in events):
@@ -118,6 +120,15 @@ def _description(ev: SkyEvent, site: Site) -> str:
         lines.append("Not seen from this site (below the horizon or in daylight).")
     if ev.separation_deg is not None:
         lines.append(f"Separation (geocentric): {ev.separation_deg:.3f} deg")
+    if ev.start_utc is not None and ev.end_utc is not None:
+        lines.append(f"From {_local_text(ev.start_utc, tz)} to {_local_text(ev.end_utc, tz)}")
+        contacts = ev.details.get("contacts") or {}
+        if contacts:
+            lines.append("Contacts (local): " + ", ".join(
+                f"{k} {_local_text(datetime.fromisoformat(v.replace('Z', '+00:00')), tz)[11:]}"
+                for k, v in contacts.items()))
+        if ev.details.get("seen"):
+            lines.append(f"Seen here: {ev.details['seen']}")
     if ev.kind == "solar_eclipse":
         from domegen.eclipse.safety import CAUTION
 
