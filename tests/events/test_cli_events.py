@@ -82,3 +82,23 @@ def test_bad_dates_exit_2(capsys):
     assert main(["events", "--place", "Nantes", "--from", "2025-02-01", "--to", "2025-01-02"]) == 2
     err = capsys.readouterr().err
     assert err.count("domegen: error:") == 2
+
+
+def test_only_eclipses_seen_from_the_site_are_listed():
+    from domegen.educator.calendar import events_at_site
+    from domegen.sky.site import Site
+
+    nantes = Site(47.2184, -1.5536, 20.0, timezone="Europe/Paris", name="Nantes")
+    ev = events_at_site(nantes, datetime(2025, 1, 1, tzinfo=UTC), datetime(2026, 6, 1, tzinfo=UTC),
+                        kinds=("solar_eclipse", "lunar_eclipse"))
+    got = {(e.kind, e.utc.date().isoformat()): e for e in ev}
+    # From memory (NASA eclipse pages): 2025-03-14 total lunar eclipse, Moon setting in totality
+    # over western Europe; 2025-03-29 partial solar eclipse over Europe (Sun up throughout in France);
+    # 2025-09-07 total lunar eclipse, Moon rising eclipsed in western Europe; 2025-09-21 partial
+    # solar (southern hemisphere only), 2026-02-17 annular (Antarctica) and 2026-03-03 total lunar
+    # (Americas, Pacific, east Asia) are not seen from France.
+    assert set(got) == {("lunar_eclipse", "2025-03-14"), ("solar_eclipse", "2025-03-29"),
+                        ("lunar_eclipse", "2025-09-07")}
+    assert "sets" in got[("lunar_eclipse", "2025-03-14")].details["seen"]
+    assert "rises" in got[("lunar_eclipse", "2025-09-07")].details["seen"]
+    assert got[("solar_eclipse", "2025-03-29")].details["seen"] == "seen from start to end"
