@@ -40,6 +40,9 @@ def register(subparsers) -> None:
     p.add_argument("--panorama", default=None, help="360-degree equirectangular PNG (alpha = sky) as horizon")
     p.add_argument("--sky", default="auto", help="sky model: auto, physical or gradient")
     p.add_argument("--seed", type=int, default=0, help="seed of the procedural skyline and lunar albedo")
+    p.add_argument("--passes", action="store_true",
+                   help="also write compositing passes beside the output: NAME-stars, NAME-bodies (light to add) "
+                        "and NAME-overlays (lines and text with alpha), at the same exposure")
     p.add_argument("--json", action="store_true", help="print a JSON object instead of text")
     p.set_defaults(func=run)
 
@@ -62,13 +65,29 @@ def run(args) -> int:
     layers = LayerSpec(exposure_ev=args.exposure, star_mag_limit=args.mag_limit,
                        light_pollution_bortle=args.bortle, panorama=args.panorama, seed=args.seed,
                        sky_model=args.sky, **opts)
-    rendered = render_frame(FrameSpec(site, utc, camera, layers))
+    spec = FrameSpec(site, utc, camera, layers)
+    extra = {}
+    if args.passes:
+        from pathlib import Path
+
+        from domegen.render.passes import render_passes
+
+        frames = render_passes(spec)
+        rendered = frames.pop("full")
+        out = Path(args.output)
+        for name, frame in frames.items():
+            extra[name] = str(write_frame(frame, out.with_name(f"{out.stem}-{name}{out.suffix}"), fmt,
+                                          args.bit_depth))
+    else:
+        rendered = render_frame(spec)
     path = write_frame(rendered, args.output, fmt, args.bit_depth)
     info = rendered.info
     result = {"output": str(path), "format": fmt, "size_px": camera.size_px, "field_deg": camera.field_deg,
               "utc": iso_utc(utc), "site": site.as_json(), "exposure_ev": info["exposure_ev"],
               "sky_model": info.get("sky_model"), "stars_drawn": info.get("stars_drawn", 0),
               "bodies": info["bodies"]}
+    if extra:
+        result["passes"] = extra
     if args.json:
         print_json(result)
         return 0
@@ -79,4 +98,6 @@ def run(args) -> int:
               f"y {b['y_px']:8.1f} px")
     if not info["bodies"]:
         print("  no Sun, Moon or planet in the frame")
+    for name, p in extra.items():
+        print(f"  pass {name}: {p}")
     return 0

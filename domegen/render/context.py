@@ -26,6 +26,8 @@ class RenderContext:
     sky_coarse: np.ndarray | None = None
     #: Eclipse hook modules active for this frame (see frame.eclipse_modules).
     eclipse_modules: list = field(default_factory=list)
+    #: (H, W) float32 coverage of overlays and labels, accumulated only when a caller asks (overlay pass).
+    overlay_alpha: np.ndarray | None = None
     exposure_ev: float = 0.0
     info: dict = field(default_factory=dict)
 

@@ -249,14 +249,16 @@ def sky_window(coarse: np.ndarray, n: int, box) -> np.ndarray:
     return out
 
 
-def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, out=None) -> RenderedFrame:
+def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, out=None,
+                 overlay_alpha: bool = False) -> RenderedFrame:
     """Render ``spec`` into linear light.
 
     Optional precomputed inputs for sequences: ``bodies`` (a BodyTable for
     this instant, N = 1), ``stars`` (a StarField), ``sky_model`` (any SkyModel,
     overriding ``spec.layers.sky_model``), ``out`` (a (3, H, W) float32 array
     to render into, e.g. the ``rgb`` of a frame already written: saves the
-    page faults of a fresh 200 MB buffer at 4K).
+    page faults of a fresh 200 MB buffer at 4K).  ``overlay_alpha``: return
+    the overlays' own coverage as the frame's alpha (see passes.render_passes).
     """
     from domegen.render import layer_bodies, layer_ground, layer_overlays, layer_stars
     from domegen.sky.times import unix_seconds
@@ -310,8 +312,12 @@ def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, ou
         ctx.info["exposure_ev"] = round(float(ev), 4)
         ctx.info["exposure_from"] = "disk"
     layer_ground.draw_ground(ctx, layers.ground)
+    if overlay_alpha:
+        ctx.overlay_alpha = np.zeros((n, n), dtype=np.float32)
     layer_overlays.draw_overlays(ctx)
     alpha = cam.circle_alpha(n)
+    if overlay_alpha:
+        alpha = ctx.overlay_alpha * alpha
     for k in range(3):
         ctx.rgb[k] *= alpha
     ctx.info["bodies"] = [b for b in ctx.info["bodies"]]

@@ -66,6 +66,8 @@ def _composite_line(ctx, dist_deg: np.ndarray, name: str, opacity: float) -> Non
         p = ctx.rgb[k]
         p *= 1.0 - cov
         p += cov * np.float32(col[k])
+    if ctx.overlay_alpha is not None:
+        ctx.overlay_alpha += cov * (1.0 - ctx.overlay_alpha)
 
 
 def _nearest(v: np.ndarray, step: float) -> np.ndarray:
@@ -152,7 +154,8 @@ def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0, keep_inside:
     else:
         ang = upright_angle(x, y, ctx.size)
         ux, uy = -math.sin(math.radians(ang)), -math.cos(math.radians(ang))
-    draw_text(ctx.rgb, text, x - ux * offset_px, y - uy * offset_px, size_px, ang, colour, opacity)
+    draw_text(ctx.rgb, text, x - ux * offset_px, y - uy * offset_px, size_px, ang, colour, opacity,
+              alpha=ctx.overlay_alpha)
 
 
 def _cardinals(ctx, opacity: float) -> None:

@@ -31,8 +31,11 @@ def text_mask(text: str, size_px: int, angle_deg: float) -> np.ndarray:
 
 
 def draw_text(planes: np.ndarray, text: str, x_px: float, y_px: float, size_px: int, angle_deg: float,
-              rgb_linear, opacity: float) -> None:
-    """Composite ``text`` centred at (x_px, y_px) over ``planes`` (3, H, W) in colour ``rgb_linear``."""
+              rgb_linear, opacity: float, alpha: np.ndarray | None = None) -> None:
+    """Composite ``text`` centred at (x_px, y_px) over ``planes`` (3, H, W) in colour ``rgb_linear``.
+
+    ``alpha`` (H, W), if given, accumulates the text's coverage (for an overlay pass).
+    """
     mask = text_mask(text, int(size_px), round(float(angle_deg), 1))
     h, w = mask.shape
     _, H, W = planes.shape
@@ -46,6 +49,9 @@ def draw_text(planes: np.ndarray, text: str, x_px: float, y_px: float, size_px: 
         win = planes[k, ys0:ys1, xs0:xs1]
         win *= 1.0 - m
         win += m * np.float32(rgb_linear[k])
+    if alpha is not None:
+        a = alpha[ys0:ys1, xs0:xs1]
+        a += m * (1.0 - a)
 
 
 def upright_angle(x_px: float, y_px: float, size_px: int) -> float:

@@ -104,3 +104,20 @@ def test_specs_are_hashable_picklable_and_validated():
             LayerSpec(**bad)
     with pytest.raises(DomegenError):
         FrameSpec(Site(0, 0), datetime(2026, 1, 1), CameraSpec())   # naive datetime
+
+
+def test_passes_share_the_exposure_and_overlays_carry_their_coverage():
+    from domegen.render.passes import render_passes
+
+    spec = FrameSpec(Site(47.2184, -1.5536, 20.0), datetime(2026, 8, 12, 22, 30, tzinfo=timezone.utc),
+                     CameraSpec(size_px=128), LayerSpec(horizon_line=1.0, grid_altaz=1.0))
+    got = render_passes(spec)
+    ev = got["full"].info["exposure_ev"]
+    assert all(p.info["exposure_ev"] == ev for p in got.values())
+    a = got["overlays"].alpha
+    assert a.max() > 0.9 and (a > 0).mean() < 0.5      # lines only
+    assert got["stars"].rgb.max() > 0 and np.all(got["stars"].rgb >= 0)
+    # no sky light in the light passes: a star-free corner of the circle stays black
+    assert got["bodies"].rgb[:, 64, 64].max() == 0.0
+    with pytest.raises(DomegenError):
+        render_passes(spec, passes=("clouds",))
