@@ -7,7 +7,8 @@ solar radii, pa = position angle from celestial north through east, radians.
 * Corona: Baumbach (1937) mean radial profile
   B/B_sun = 1e-6 (0.0532 rho^-2.5 + 1.425 rho^-7 + 2.565 rho^-17)
   (from memory, flagged in REFERENCES 3.2; consistent with the sourced
-  4-5e-6 of the disk near the limb), modulated in position angle by seeded
+  4-5e-6 of the disk near the limb); its K part (rho^-7, rho^-17) is modulated
+  in position angle by seeded
   streamers: helmet streamers concentrated toward the solar equator, broad
   at the base and narrowing outward, and fine polar plumes.  The modulation
   has a mean close to 1 around each circle (measured in the tests), so the
@@ -36,12 +37,18 @@ PINK_RGB = np.array([1.0, 0.16, 0.34]) / (0.2126 * 1.0 + 0.7152 * 0.16 + 0.0722 
 CORONA_RHO_MAX = 8.0
 
 
-def baumbach(rho) -> np.ndarray:
-    """Baumbach mean coronal brightness, units of the mean solar disk brightness."""
+def baumbach_terms(rho) -> tuple[np.ndarray, np.ndarray]:
+    """Baumbach's (F, K) parts: the rho^-2.5 term and the rho^-7 + rho^-17 terms, B_sun units."""
     ir = 1.0 / np.maximum(np.asarray(rho, dtype=float), 1.0)
     ir2 = ir * ir
     ir7 = ir2 * ir2 * ir2 * ir
-    return 1e-6 * (0.0532 * ir2 * np.sqrt(ir) + 1.425 * ir7 + 2.565 * ir7 * ir7 * ir2 * ir)
+    return 1e-6 * 0.0532 * ir2 * np.sqrt(ir), 1e-6 * (1.425 * ir7 + 2.565 * ir7 * ir7 * ir2 * ir)
+
+
+def baumbach(rho) -> np.ndarray:
+    """Baumbach mean coronal brightness, units of the mean solar disk brightness."""
+    f, k = baumbach_terms(rho)
+    return f + k
 
 
 @functools.lru_cache(maxsize=8)
@@ -54,7 +61,7 @@ def _streamers(seed: int):
     amp = rng.uniform(0.8, 3.0, n)
     width = np.radians(rng.uniform(8.0, 22.0, n))
     # fine structure: rays in position angle, stronger near the poles (plumes)
-    k = np.arange(20, 160)
+    k = np.arange(10, 90)
     ray_amp = rng.rayleigh(1.0, k.size) / k ** 0.5
     ray_phase = rng.uniform(0, 2 * np.pi, k.size)
     prom_n = int(rng.integers(4, 9))
@@ -101,7 +108,10 @@ def corona(rho, pa, seed: int = 0, solar_axis_pa: float = 0.0) -> np.ndarray:
     u, v = fr - i, fa - j
     m = ((1 - u) * (1 - v) * t[i, j] + u * (1 - v) * t[i + 1, j]
          + (1 - u) * v * t[i, j + 1] + u * v * t[i + 1, j + 1])
-    return baumbach(rho) * m
+    # streamers structure the K-corona (Thomson-scattered, rho^-7 and rho^-17 terms); the dust
+    # F-corona (rho^-2.5) stays smooth, slightly flattened toward the solar equator (unit mean)
+    f, kc = baumbach_terms(rho)
+    return kc * m + f * (1.0 + 0.25 * (np.sin(a) ** 2 - 0.5))
 
 
 def _modulation(rho, a, seed: int) -> np.ndarray:
@@ -119,7 +129,7 @@ def _modulation(rho, a, seed: int) -> np.ndarray:
                     * np.sqrt(1.0 - 1.0 / rho.reshape(1, -1) + 0.15), axis=0)
     polar = np.abs(np.cos(a.reshape(-1)))  # 1 at the poles
     rays = np.tanh(np.sum(ray_amp[:, None] * np.cos(k[:, None] * a.reshape(1, -1) + ray_phase[:, None]), axis=0))
-    fine = 1.0 + (0.15 + 0.35 * polar) * rays
+    fine = 1.0 + (0.08 + 0.22 * polar ** 4) * rays
     # equatorial flattening of the base (solar-minimum shape), unit mean
     shape = 0.55 + 0.9 * (1.0 - polar ** 2)
     return (0.35 + helmets) / (0.35 + mean_h) * fine * shape

@@ -90,9 +90,33 @@ _S_GRID = np.linspace(0.0, _S_MAX, 901)
 _Q_GRID = np.linspace(0.85, 1.15, 31)
 
 
+_TABLE_VERSION = 2
+
+
+def cached_table(name: str, build) -> np.ndarray:
+    """A float64 table from the user cache (domegen.cache), built by ``build()`` and stored on first use."""
+    import io
+
+    from domegen.cache import atomic_write_bytes, cache_dir
+
+    path = cache_dir() / f"{name}-v{_TABLE_VERSION}.npy"
+    try:
+        t = np.load(path, allow_pickle=False)
+    except (OSError, ValueError):
+        t = np.asarray(build(), dtype=float)
+        buf = io.BytesIO()
+        np.save(buf, t, allow_pickle=False)
+        try:
+            atomic_write_bytes(path, buf.getvalue())
+        except OSError:
+            pass  # a read-only cache only costs the rebuild next time
+    t.flags.writeable = False
+    return t
+
+
 @functools.lru_cache(maxsize=1)
 def _table() -> np.ndarray:
-    return covered_fraction_exact(_S_GRID[:, None], _Q_GRID[None, :])
+    return cached_table("eclipse-solar-cover", lambda: covered_fraction_exact(_S_GRID[:, None], _Q_GRID[None, :]))
 
 
 _KINK_BAND = 0.02

@@ -34,7 +34,7 @@ import math
 import numpy as np
 
 from domegen.eclipse.lunar_shadow import DANJON_FACTOR
-from domegen.render.eclipse_geometry import EARTH_RADIUS_KM, SUN_RADIUS_KM, covered_fraction_exact
+from domegen.render.eclipse_geometry import EARTH_RADIUS_KM, SUN_RADIUS_KM, cached_table, covered_fraction_exact
 from domegen.sky.refraction import unrefract
 
 _U = np.linspace(0.0, 2.0, 801)
@@ -44,8 +44,11 @@ RIM_RGB = np.array([0.55, 0.85, 1.0]) / (0.2126 * 0.55 + 0.7152 * 0.85 + 0.0722 
 
 @functools.lru_cache(maxsize=1)
 def _earth_table() -> np.ndarray:
-    s = (_QL[None, :] - 1.0) + _U[:, None]
-    return covered_fraction_exact(s, np.broadcast_to(_QL[None, :], s.shape))
+    def build():
+        s = (_QL[None, :] - 1.0) + _U[:, None]
+        return covered_fraction_exact(s, np.broadcast_to(_QL[None, :], s.shape))
+
+    return cached_table("eclipse-earth-cover", build)
 
 
 def earth_covered_fraction(s, q) -> np.ndarray:

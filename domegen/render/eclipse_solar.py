@@ -35,15 +35,16 @@ from domegen.render.eclipse_corona import (CORONA_RHO_MAX, PINK_RGB, chromospher
                                            corona)
 from domegen.render.eclipse_geometry import MOON_RADIUS_KM, DiskGeometry, disk_geometry, neckel_labs_rgb
 from domegen.render.eclipse_limb import CLIP_KM, limb_height_km
-from domegen.sky.colour import temperature_to_rgb
 from domegen.sky.refraction import unrefract
 
 #: Sun V = -26.74 at 1 au (Allen) -> illuminance via E = 2.54e-6 10^(-0.4 V) lx (REFERENCES 4.2).
 SUN_ILLUMINANCE_1AU_LX = 2.54e-6 * 10.0 ** (0.4 * 26.74)
 #: Mean luminance of the solar disk (top of the atmosphere), cd/m^2: illuminance / solid angle at 1 au.
 SUN_MEAN_LUMINANCE = SUN_ILLUMINANCE_1AU_LX / (math.pi * math.tan(math.radians(959.63 / 3600.0)) ** 2)
-#: Colour of sunlight (5772 K black body chromaticity), linear sRGB with luminance 1.
-SUN_RGB = temperature_to_rgb(5772.0).reshape(3)
+#: Colour of sunlight above the atmosphere as displayed: white, i.e. white-balanced to sunlight like
+#: the physical sky (PhysicalSky.white_balance) and the renderer's own Sun; the atmosphere's
+#: transmittance reddens it toward the horizon.
+SUN_RGB = np.ones(3)
 PROMINENCE_REACH = 0.09          # solar radii above the limb that may hold emission
 _SUBSAMPLE_TARGET_RAD = math.radians(2.5 / 3600.0)
 _MAX_SUB = 64
