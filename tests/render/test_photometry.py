@@ -102,6 +102,12 @@ def test_moon_lit_fraction_matches_the_sky_engine(when):
     lit = lum > 1e-3 * lum.max()
     frac = lit[disk].sum() / disk.sum()
     assert abs(frac - b.illuminated_fraction[0]) < 0.02
+    # the whole disk (earthshine included) is drawn where the camera puts the Moon: centroid within 0.5 px
+    # (1 px = 14 arcsec here), and its radius matches the sky engine's angular radius
+    cover = lum > 0
+    cy, cx = (ys[cover] + 0.5).mean(), (xs[cover] + 0.5).mean()
+    assert math.hypot(cx - n / 2, cy - n / 2) < 0.5
+    assert abs(math.sqrt(cover.sum() / math.pi) - rad_px) < 1.0
 
 
 @pytest.mark.parametrize("when", PHASES[:3], ids=lambda d: d.strftime("%m%d"))
