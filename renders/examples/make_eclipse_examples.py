@@ -104,7 +104,7 @@ def main(argv=None) -> None:
         t = lc_a.utc("max")
         alt, az, _, _ = _sun_view(albuquerque, t)
         # annularity is a partial phase for the eyes: seen through a solar filter (density 5)
-        _frame(albuquerque, t, CameraSpec(size_px=n, field_deg=2.5, view_az_deg=az, view_alt_deg=alt),
+        _frame(albuquerque, t, CameraSpec(size_px=n, field_deg=1.2, view_az_deg=az, view_alt_deg=alt),
                f"{out}/eclipse-annular-ring-filtered.png", exposure_ev=-13.0)
     if want("eclipse-lunar"):
         le = lunar_eclipse_on("2029-12-20")
