@@ -102,3 +102,19 @@ def test_only_eclipses_seen_from_the_site_are_listed():
     assert "sets" in got[("lunar_eclipse", "2025-03-14")].details["seen"]
     assert "rises" in got[("lunar_eclipse", "2025-09-07")].details["seen"]
     assert got[("solar_eclipse", "2025-03-29")].details["seen"] == "seen from start to end"
+
+
+def test_ics_eclipse_spans_first_to_last_contact_with_caution(tmp_path, capsys):
+    ics = tmp_path / "eclipse.ics"
+    assert main(["events", "--place", "Nantes", "--from", "2026-08-12", "--to", "2026-08-12",
+                 "--kinds", "solar_eclipse", "--json", "--ics", str(ics)]) == 0
+    ev = json.loads(capsys.readouterr().out)["events"]
+    assert len(ev) == 1 and ev[0]["kind"] == "solar_eclipse"
+    cal = icalendar.Calendar.from_ical(ics.read_bytes())
+    (v,) = [c for c in cal.walk() if c.name == "VEVENT"]
+    c = ev[0]["details"]["contacts"]
+    assert v["DTSTART"].dt == datetime.fromisoformat(c["C1"].replace("Z", "+00:00"))
+    assert v["DTEND"].dt == datetime.fromisoformat(c["C4"].replace("Z", "+00:00"))
+    desc = str(v["DESCRIPTION"])
+    assert "ISO 12312-2" in desc and "CEST" in desc
+    assert str(v["GEO"].latitude).startswith("47.21")
