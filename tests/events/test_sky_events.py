@@ -125,3 +125,36 @@ def test_window_altitudes_match_skyfield_topocentric_altaz():
         up = ref > 1.0  # the two refraction formulas part ways below the horizon
         assert up.sum() > 20
         assert np.max(np.abs(alt - ref)[up]) < 0.05, name
+
+
+def test_pairings_agree_with_skyfield_find_minima_pair_by_pair():
+    # reference: skyfield's own searchlib.find_minima on its separation_from, one pair at a time
+    import itertools
+
+    import numpy as np
+    from skyfield.searchlib import find_minima
+
+    from domegen.sky.ephemeris import body, earth
+    from domegen.sky.events import PAIR_BODIES
+    from domegen.sky.times import to_time
+
+    s0 = unix_seconds(datetime(2025, 1, 1, tzinfo=UTC))
+    s1 = unix_seconds(datetime(2025, 4, 1, tzinfo=UTC))
+    ours = find_pairings(s0, s1, max_separation_deg=3.0)
+    ref = []
+    for a, b in itertools.combinations(PAIR_BODIES, 2):
+        ba, bb = body(a), body(b)
+
+        def sep(t, ba=ba, bb=bb):
+            o = earth().at(t)
+            return o.observe(ba).apparent().separation_from(o.observe(bb).apparent()).degrees
+        sep.step_days = 1.0 / 12
+        t, v = find_minima(to_time(s0), to_time(s1), sep)
+        ref += [(a, b, unix_seconds(ti.utc_datetime()), float(vi))
+                for ti, vi in zip(t, np.atleast_1d(v)) if vi < 3.0]
+    ref.sort(key=lambda r: r[2])
+    assert len(ours) == len(ref) >= 8
+    for (a, b, t, s), (ra, rb, rt, rs) in zip(ours, ref):
+        assert (a, b) == (ra, rb)
+        assert abs(t - rt) < 120.0      # minima are flat: the instant is loose, the value is not
+        assert abs(s - rs) < 1e-4
