@@ -34,6 +34,9 @@ def run_page(exe: str, page: Path, screenshot: Path, *, width: int = 1200,
     cmd = [exe, "--headless=new", "--no-sandbox", "--disable-gpu", "--no-first-run",
            "--no-default-browser-check", "--disable-extensions", "--disable-background-networking",
            "--disable-component-update", "--disable-sync", "--hide-scrollbars",
+           # offline always: no name resolves, no proxy or update traffic can leave the machine
+           "--host-resolver-rules=MAP * ~NOTFOUND", "--no-proxy-server", "--no-pings",
+           "--disable-domain-reliability", "--disable-client-side-phishing-detection",
            "--enable-logging=stderr", "--v=0", f"--user-data-dir={profile}",
            f"--window-size={width},{height}", f"--screenshot={screenshot}",
            "--virtual-time-budget=3000", page.resolve().as_uri()]
