@@ -161,8 +161,12 @@ def cue_sheet_markdown(ecl: LocalEclipse, sky: list[SkyObject] | None = None) ->
         if ecl.magnitude is not None:
             lines.append(f"- Magnitude at maximum: {ecl.magnitude:.3f}; obscuration "
                          f"{100 * (ecl.obscuration or 0):.1f}% of the Sun's disc")
-        lines.append(f"- Duration of {'annularity' if ecl.local_type == 'annular' else 'totality'}"
-                     f" here: {_duration(ecl.duration_s)}")
+        if ecl.local_type in ("total", "annular"):
+            lines.append(f"- Duration of {'annularity' if ecl.local_type == 'annular' else 'totality'}"
+                         f" here: {_duration(ecl.duration_s)}")
+        else:
+            lines.append(f"- No {'annular phase' if ecl.global_type == 'annular' else 'totality'} "
+                         f"here: the Moon covers only part of the Sun")
     else:
         lines.append(f"- Umbral magnitude: {ecl.magnitude:.3f}; "
                      f"duration of {'totality' if ecl.global_type == 'total' else 'the partial phase'}: "
