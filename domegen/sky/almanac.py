@@ -164,7 +164,9 @@ def _find(site, kind: str, t0, t1, memo: dict | None = None) -> list[datetime]:
         real = (up == 1) if what == "rise" else (up == 0)
     if len(t.tt) == 0:
         return []
-    return [d for d, ok in zip(t.utc_datetime(), np.atleast_1d(real)) if ok]
+    from domegen.sky.times import from_time
+
+    return [d for d, ok in zip(np.atleast_1d(from_time(t)), np.atleast_1d(real)) if ok]
 
 
 def events(site, start_utc, end_utc, kinds=None) -> list[Event]:
