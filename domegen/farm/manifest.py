@@ -124,6 +124,8 @@ class Manifest:
         self.close()
         if self.lines <= len(self.records):
             return
+        fresh = Manifest(self.root).load()  # keep what other jobs appended meanwhile
+        self.records = {**self.records, **{k: v for k, v in fresh.records.items() if k not in self.records}}
         body = "".join(json.dumps(asdict(r), separators=(",", ":")) + "\n"
                        for _, r in sorted(self.records.items()))
         atomic_write_bytes(self.path, body.encode())

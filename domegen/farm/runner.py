@@ -120,8 +120,8 @@ def render_scene(scene, *, frames=None, workers: int | None = None, scale: float
     finally:
         results.close()  # stops workers still busy (their frames are simply not recorded)
         report.wall_s = time.perf_counter() - t0
-        if report.interrupted:
-            manifest.close()
+        if report.interrupted or frames is not None:
+            manifest.close()  # range jobs may share the folder: only a full run rewrites the manifest
         else:
             manifest.compact()
     done = f"{report.rendered} frames rendered, {report.skipped} already complete"
