@@ -83,30 +83,41 @@ def load_panorama(path: str) -> tuple[np.ndarray, float]:
 
 @functools.lru_cache(maxsize=4)
 def ground_geometry(camera, limit_deg: float):
-    """Flat indices, altitudes and azimuths (deg) of the pixels inside the image circle below ``limit_deg``."""
-    from domegen.render.camera import radius_rows, unproject, up_component_rows
+    """Flat indices, altitudes and azimuths (deg) of the pixels inside the image circle below ``limit_deg``.
+
+    Blocks of 16 x 16 pixels are screened first from their centre's altitude
+    (a pixel is less than one pixel-angle from its neighbour), so only blocks
+    that can hold ground are evaluated per pixel.
+    """
+    from domegen.render.camera import rad_per_px, unproject
 
     n = camera.size_px
     zmax = math.sin(math.radians(limit_deg))
-    sels, alts, azs = [], [], []
-    cols = np.arange(n) + 0.5
-    for r0 in range(0, n, 256):   # row bands: no full-frame direction grid needed
-        r1 = min(n, r0 + 256)
-        inside = radius_rows(n, r0, r1) <= np.float32(1.0 + 2.0 / n)
-        inside &= up_component_rows(camera, r0, r1) < np.float32(zmax + 1e-4)
-        rr, cc = np.nonzero(inside)
-        if rr.size == 0:
-            continue
-        d = unproject(camera, cols[cc], rr + r0 + 0.5)
-        low = d[2] < zmax
-        sels.append((rr[low] + r0) * n + cc[low])
-        alts.append(np.degrees(np.arcsin(np.clip(d[2, low], -1.0, 1.0))))
-        azs.append(np.degrees(np.arctan2(d[0, low], d[1, low])) % 360.0)
-    sel = np.concatenate(sels) if sels else np.zeros(0, np.int64)
-    alt = np.concatenate(alts) if alts else np.zeros(0)
-    az = np.concatenate(azs) if azs else np.zeros(0)
-    for a in (sel, alt, az):
-        a.flags.writeable = False
+    bs = 16
+    nb = -(-n // bs)
+    centres = (np.arange(nb) + 0.5) * bs
+    bx, by = np.meshgrid(centres, centres)
+    dc = unproject(camera, bx, by)
+    reach = bs * rad_per_px(camera)           # angular half-size of a block, generously
+    half = n / 2.0
+    rb = np.hypot(bx - half, by - half) / half
+    cand = (dc[2] < zmax + reach) & (rb <= 1.0 + 1.5 * bs / n)
+    iy, ix = np.nonzero(cand)
+    off = np.arange(bs)
+    rows = (iy[:, None, None] * bs + off[None, :, None]) + 0 * off[None, None, :]
+    cols = (ix[:, None, None] * bs + off[None, None, :]) + 0 * off[None, :, None]
+    rows, cols = rows.reshape(-1), cols.reshape(-1)
+    ok = (rows < n) & (cols < n)
+    rows, cols = rows[ok], cols[ok]
+    inside = np.hypot(cols + 0.5 - half, rows + 0.5 - half) <= half * (1.0 + 2.0 / n)
+    rows, cols = rows[inside], cols[inside]
+    d = unproject(camera, cols + 0.5, rows + 0.5)
+    low = d[2] < zmax
+    sel = rows[low] * n + cols[low]
+    alt = np.degrees(np.arcsin(np.clip(d[2, low], -1.0, 1.0)))
+    az = np.degrees(np.arctan2(d[0, low], d[1, low])) % 360.0
+    for arr in (sel, alt, az):
+        arr.flags.writeable = False
     return sel, alt, az
 
 
