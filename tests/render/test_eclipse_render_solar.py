@@ -164,3 +164,47 @@ def test_moon_centre_in_closeup_matches_local_circumstances(eclipse):
     sep_expected = r_s + r_m - 2.0 * r_s * float(lc.magnitude[0])
     assert rm == pytest.approx(r_m, rel=0.01)
     assert abs(sep_px - sep_expected) < 0.01 * 2 * r_s, (sep_px, sep_expected)
+
+
+def test_darkness_comes_from_the_shadow_side_and_leaves_on_the_other(central):
+    """Horizon toward the approaching umbra darkens first; after C3 that side recovers and the other darkens.
+
+    Compared as a ratio of the two opposite horizons at the same azimuths before C2 and after C3
+    (four minutes apart), so the Sun's forward-scattering glow cancels out.
+    """
+    from domegen.render.atmosphere.physical import PhysicalSky
+    from domegen.render.eclipse_geometry import shadow_function
+    from domegen.render.eclipse_solar import eclipse_light
+    from domegen.render.frame import sky_light
+    from domegen.render.spec import FrameSpec
+    from domegen.sky.bodies import body_positions
+    from domegen.sky.times import from_unix_seconds
+
+    site, lc = central
+    az = np.radians(np.arange(0.0, 360.0, 10.0))
+    ring = np.stack([np.sin(az) * 1e5, np.cos(az) * 1e5, np.full(az.size, 1e4)])
+    sky = PhysicalSky()
+    before, after = float(lc.utc_s["c2"][0]) - 30.0, float(lc.utc_s["c3"][0]) + 30.0
+
+    def umbra_side(t):
+        """Azimuth of the darkest part of a 100 km ring around the site (shadow geometry)."""
+        f = shadow_function(disk_geometry(site, t))(ring)
+        w = f.max() - f
+        return math.atan2(float(w @ np.sin(az)), float(w @ np.cos(az)))
+
+    where = [umbra_side(t) for t in (before, after)]
+    # the umbra arrives from one side and leaves toward the other
+    turn = abs((math.degrees(where[1] - where[0]) + 180.0) % 360.0 - 180.0)
+    assert turn > 120.0, turn
+    alt = np.radians(4.0)
+    a0 = where[0]
+    d = np.array([[np.cos(alt) * np.sin(a), np.cos(alt) * np.cos(a), np.sin(alt)]
+                  for a in (a0, a0 + np.pi)]).T.astype(np.float32)
+    ratio = []
+    for t in (before, after):
+        spec = FrameSpec(site=site, utc=from_unix_seconds(t))
+        bodies = body_positions(site, np.array([t]))
+        light = eclipse_light(spec, sky_light(spec, bodies), bodies)
+        lum = sky.radiance(d, light).astype(float) @ np.array([0.2126, 0.7152, 0.0722])
+        ratio.append(lum[0] / lum[1])
+    assert ratio[0] < 0.8 * ratio[1], ratio
