@@ -40,6 +40,7 @@ class FrameResult:
     bytes: int
     render_s: float         # time spent producing the image bytes
     total_s: float          # time for the whole job inside the worker
+    cpu_s: float = 0.0      # CPU time of the worker's process for the whole job
 
 
 def render_and_encode(spec, fmt: str, bit_depth: int) -> bytes:
@@ -58,6 +59,7 @@ def _producer(name: str):
 def run_job(job: FrameJob) -> FrameResult:
     """Produce one frame, write it under a temporary name, rename, and hash the bytes."""
     t0 = time.perf_counter()
+    c0 = time.process_time()
     data = _producer(job.producer)(job.spec, job.fmt, job.bit_depth)
     t1 = time.perf_counter()
     path = Path(job.path)
@@ -65,7 +67,7 @@ def run_job(job: FrameJob) -> FrameResult:
     atomic_write_bytes(path, data)
     digest = hashlib.sha256(data).hexdigest()
     return FrameResult(job.frame, job.file, job.params, digest, len(data), t1 - t0,
-                       time.perf_counter() - t0)
+                       time.perf_counter() - t0, time.process_time() - c0)
 
 
 def run_chunk(jobs: list) -> list:
