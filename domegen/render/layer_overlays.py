@@ -46,6 +46,8 @@ STAR_NAMES = {32349: "Sirius", 30438: "Canopus", 69673: "Arcturus", 91262: "Vega
               37826: "Pollux", 113368: "Fomalhaut", 102098: "Deneb", 62434: "Mimosa", 49669: "Regulus",
               11767: "Polaris", 36850: "Castor", 25336: "Bellatrix", 54061: "Dubhe", 62956: "Alioth"}
 LABEL_MAG_LIMIT = 2.1
+#: Star names only while the Sun is lower than this (bright stars appear in civil twilight).
+STAR_LABEL_MAX_SUN_ALT_DEG = -3.0
 
 
 def _width_px(ctx, name: str) -> float:
@@ -196,8 +198,8 @@ def _labels(ctx, opacity: float) -> None:
         if clear(b.enu_refracted[i, :, 0]):
             _place(ctx, b.enu_refracted[i, :, 0], entry["name"], size, col, opacity, offset_px=r_px + 0.9 * size + 3)
     sf = ctx.stars
-    if sf is None:
-        return
+    if sf is None or ctx.light.sun_alt_deg > STAR_LABEL_MAX_SUN_ALT_DEG:
+        return   # no star names on a sky too bright to show the stars
     bright = np.flatnonzero((sf.vmag < LABEL_MAG_LIMIT) & (sf.alt_deg > 0))
     for j in bright:  # a few dozen names at most
         name = STAR_NAMES.get(int(sf.hip[j]))

@@ -45,13 +45,32 @@ def draw_text(planes: np.ndarray, text: str, x_px: float, y_px: float, size_px: 
     if xs0 >= xs1 or ys0 >= ys1:
         return
     m = mask[ys0 - y0:ys1 - y0, xs0 - x0:xs1 - x0] * np.float32(opacity)
+    halo = _outline(mask)[ys0 - y0:ys1 - y0, xs0 - x0:xs1 - x0] * np.float32(opacity * OUTLINE_OPACITY)
+    for k in range(3):   # a dark rim first, so light text reads on a bright sky too
+        win = planes[k, ys0:ys1, xs0:xs1]
+        win *= 1.0 - halo
     for k in range(3):
         win = planes[k, ys0:ys1, xs0:xs1]
         win *= 1.0 - m
         win += m * np.float32(rgb_linear[k])
     if alpha is not None:
         a = alpha[ys0:ys1, xs0:xs1]
-        a += m * (1.0 - a)
+        a += np.maximum(m, halo) * (1.0 - a)
+
+
+#: Opacity of the dark rim drawn under text (legibility on bright skies).
+OUTLINE_OPACITY = 0.55
+
+
+def _outline(mask: np.ndarray) -> np.ndarray:
+    """The mask dilated by one pixel (max of the 8 neighbours)."""
+    p = np.pad(mask, 1)
+    h, w = mask.shape
+    out = mask.copy()
+    for dy in (0, 1, 2):
+        for dx in (0, 1, 2):
+            np.maximum(out, p[dy:dy + h, dx:dx + w], out=out)
+    return out
 
 
 def upright_angle(x_px: float, y_px: float, size_px: int) -> float:
