@@ -13,8 +13,9 @@ import itertools
 import numpy as np
 
 from domegen.sky.ephemeris import body, earth, ephemeris
+from domegen.sky.frames import civil_seconds
 from domegen.sky.site import Site
-from domegen.sky.times import to_time, unix_seconds
+from domegen.sky.times import to_time
 
 #: Bodies whose pairings are searched (naked-eye objects).
 PAIR_BODIES = ("Moon", "Mercury", "Venus", "Mars", "Jupiter", "Saturn")
@@ -184,7 +185,7 @@ def find_oppositions(start_s: float, end_s: float, names=OPPOSITION_BODIES):
         t, y = find_discrete(t0, t1, f)
         for ti, yi in zip(t, y):
             if yi == 1:
-                out.append((name, unix_seconds(ti.utc_datetime())))
+                out.append((name, float(civil_seconds(ti)[0])))
     out.sort(key=lambda r: r[1])
     return out
 
@@ -195,5 +196,5 @@ def find_moon_phases(start_s: float, end_s: float):
     from skyfield.searchlib import find_discrete
 
     t, y = find_discrete(to_time(start_s), to_time(end_s), almanac.moon_phases(ephemeris()))
-    secs = unix_seconds(list(t.utc_datetime())) if len(t) else np.zeros(0)
+    secs = civil_seconds(t) if len(t) else np.zeros(0)
     return [(int(p), float(s)) for p, s in zip(y, secs)]
