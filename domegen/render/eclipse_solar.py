@@ -17,7 +17,8 @@ Everything is computed from the topocentric geometry of the instant
 
 Pixels whose footprint meets the solar limb (with the chromosphere and
 prominences) or the lunar limb in front of the photosphere are supersampled
-(up to 64 x 64, finer than ~2.5 arcsec) with an anti-aliased edge, so beads
+(up to 16 x 16, finer than ~4 arcsec where that allows, 10 arcsec on a 4K dome; the
+edges are anti-aliased ramps, so a sliver thinner than a subsample keeps its flux) with an anti-aliased edge, so beads
 far smaller than a pixel keep their flux.  Output: an additive patch of
 linear RGB luminance (cd/m^2) to add to the sky, multiplied by the
 atmosphere's transmittance toward the Sun when given.
@@ -46,8 +47,8 @@ SUN_MEAN_LUMINANCE = SUN_ILLUMINANCE_1AU_LX / (math.pi * math.tan(math.radians(9
 #: transmittance reddens it toward the horizon.
 SUN_RGB = np.ones(3)
 PROMINENCE_REACH = 0.09          # solar radii above the limb that may hold emission
-_SUBSAMPLE_TARGET_RAD = math.radians(2.5 / 3600.0)
-_MAX_SUB = 64
+_SUBSAMPLE_TARGET_RAD = math.radians(4.0 / 3600.0)
+_MAX_SUB = 16
 _CHUNK = 1 << 21
 
 
