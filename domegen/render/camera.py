@@ -82,16 +82,23 @@ def project(camera: CameraSpec, enu) -> tuple[np.ndarray, np.ndarray, np.ndarray
     return half + k * c[0], half + k * c[1], theta
 
 
-def unproject(camera: CameraSpec, x_px, y_px) -> np.ndarray:
-    """Frame coordinates -> unit ENU vectors (3, ...), float64 (any radius)."""
+def unproject(camera: CameraSpec, x_px, y_px, dtype=np.float64) -> np.ndarray:
+    """Frame coordinates -> unit ENU vectors (3, ...) (any radius); float64 unless ``dtype`` says otherwise."""
     half = camera.size_px / 2.0
-    x = (np.asarray(x_px, dtype=float) - half) / half
-    y = (np.asarray(y_px, dtype=float) - half) / half
+    x = (np.asarray(x_px, dtype=dtype) - dtype(half)) / dtype(half)
+    y = (np.asarray(y_px, dtype=dtype) - dtype(half)) / dtype(half)
     r = np.hypot(x, y)
-    theta = r * half_field_rad(camera)
-    s = np.sinc(theta / np.pi) * half_field_rad(camera)  # sin(theta)/r without 0/0
-    cam = np.stack([s * x, s * y, np.cos(theta)])
-    return np.tensordot(camera_basis(camera).T, cam, axes=(1, 0))
+    hf = dtype(half_field_rad(camera))
+    theta = r * hf
+    with np.errstate(invalid="ignore", divide="ignore"):
+        s = np.where(r > 0, np.sin(theta) / r, hf)   # sin(theta) / r, -> hf at the centre
+    cz = np.cos(theta)
+    cx, cy = s * x, s * y
+    m = camera_basis(camera).astype(dtype)
+    out = np.empty((3,) + np.shape(cx), dtype=dtype)
+    for k in range(3):
+        out[k] = m[0, k] * cx + m[1, k] * cy + m[2, k] * cz
+    return out
 
 
 @functools.lru_cache(maxsize=2)

@@ -111,11 +111,11 @@ def ground_geometry(camera, limit_deg: float):
     rows, cols = rows[ok], cols[ok]
     inside = np.hypot(cols + 0.5 - half, rows + 0.5 - half) <= half * (1.0 + 2.0 / n)
     rows, cols = rows[inside], cols[inside]
-    d = unproject(camera, cols + 0.5, rows + 0.5)
+    d = unproject(camera, cols + 0.5, rows + 0.5, dtype=np.float32)   # 1e-7 rad: far below a pixel
     low = d[2] < zmax
     sel = rows[low] * n + cols[low]
-    alt = np.degrees(np.arcsin(np.clip(d[2, low], -1.0, 1.0)))
-    az = np.degrees(np.arctan2(d[0, low], d[1, low])) % 360.0
+    alt = np.degrees(np.arcsin(np.clip(d[2, low], -1.0, 1.0))).astype(np.float64)
+    az = np.degrees(np.arctan2(d[0, low], d[1, low])).astype(np.float64) % 360.0
     for arr in (sel, alt, az):
         arr.flags.writeable = False
     return sel, alt, az
