@@ -8,6 +8,7 @@ promises 1900-01-01 to 2050-12-31 UTC.
 
 from __future__ import annotations
 
+import atexit
 import functools
 import os
 from datetime import datetime, timezone
@@ -51,7 +52,9 @@ def ephemeris():
     path = os.path.join(_data_dir(), "de421.bsp")
     if not os.path.exists(path):  # pragma: no cover - broken install
         raise OutOfRangeError("the DE421 ephemeris is missing from skyfield-data; reinstall it")
-    return loader("de421.bsp")
+    kernel = loader("de421.bsp")
+    atexit.register(kernel.close)
+    return kernel
 
 
 @functools.lru_cache(maxsize=None)
