@@ -15,6 +15,11 @@ from domegen.scene import load_scene
 from tests.farm.conftest import hashes, write_scene
 
 
+def _mean_rgb(path) -> float:
+    with Image.open(path) as im:
+        return float(np.asarray(im)[..., :3].mean())
+
+
 def test_cli_renders_every_frame_and_records_it(tmp_path, capsys):
     scene = write_scene(tmp_path)
     assert main(["render", str(scene), "--workers", "1"]) == 0
@@ -22,17 +27,16 @@ def test_cli_renders_every_frame_and_records_it(tmp_path, capsys):
     files = sorted(out.glob("f_*.png"))
     assert [p.name for p in files] == [f"f_{n:03d}.png" for n in range(8)]
     for p in files:
-        im = Image.open(p)
-        assert im.size == (64, 64) and im.mode == "RGBA"
-        a = np.asarray(im)
+        with Image.open(p) as im:
+            assert im.size == (64, 64) and im.mode == "RGBA"
+            a = np.asarray(im)
         assert a[32, 32, 3] == 255 and a[0, 0, 3] == 0  # inside / outside the image circle
     recs = [json.loads(line) for line in (out / MANIFEST_NAME).read_text().splitlines()]
     assert sorted(r["frame"] for r in recs) == list(range(8))
     h = hashes(out)
     assert all(h[r["file"]] == r["sha256"] for r in recs)
     # at a fixed exposure, daylight (frame 0, 17:30 UTC) is brighter than night (frame 7, ~22:30 UTC)
-    first = np.asarray(Image.open(files[0]))[..., :3].mean()
-    last = np.asarray(Image.open(files[-1]))[..., :3].mean()
+    first, last = (_mean_rgb(files[0]), _mean_rgb(files[-1]))
     assert first > last
     capsys.readouterr()
     assert main(["render", str(scene), "--workers", "1"]) == 0
@@ -60,5 +64,6 @@ def test_one_and_two_workers_and_dask_give_identical_bytes(tmp_path):
 def test_scale_makes_drafts(tmp_path):
     scene = load_scene(write_scene(tmp_path, size=256))
     render_scene(scene, workers=1, frames="0-1", scale=0.25, out=tmp_path / "draft")
-    assert Image.open(tmp_path / "draft" / "f_000.png").size == (64, 64)
+    with Image.open(tmp_path / "draft" / "f_000.png") as im:
+        assert im.size == (64, 64)
     assert not (tmp_path / "draft" / "f_002.png").exists()

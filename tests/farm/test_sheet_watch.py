@@ -29,10 +29,10 @@ def test_sheet_has_each_shot_and_every_nth_frame(tmp_path, capsys):
     assert sheet_frames(scene, 3) == [0, 3, 4, 6]
     out = tmp_path / "sheet.png"
     assert main(["sheet", str(scene_path), "-o", str(out), "--every", "3", "--size", "64"]) == 0
-    im = Image.open(out)
-    # 4 thumbnails of 64 px (+ margins and labels) in a grid
-    assert im.width >= 2 * 64 and im.height >= 2 * 64
-    a = np.asarray(im.convert("RGB")).astype(int)
+    with Image.open(out) as im:
+        # 4 thumbnails of 64 px (+ margins and labels) in a grid
+        assert im.width >= 2 * 64 and im.height >= 2 * 64
+        a = np.asarray(im.convert("RGB")).astype(int)
     assert a.std() > 5
 
 
