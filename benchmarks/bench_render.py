@@ -8,7 +8,7 @@ the floor (the same PNG writer on the already tone-mapped codes).  Times are
 CPU seconds of this process (core-seconds; wall time in brackets).  Peak
 memory is the process's maximum resident set size.
 
-    /work/venv/bin/python benchmarks/bench_render.py [--sizes 4096 8192]
+    python benchmarks/bench_render.py [--sizes 4096 8192]
 """
 
 from __future__ import annotations

@@ -5,7 +5,8 @@ buffer; stars, Sun and planet points are added; planet disks and the Moon
 are composited over what lies behind them (the Moon hides the Sun in a
 solar eclipse) with the sky light kept in front; eclipse paint hooks; the
 opaque ground; overlays and labels; finally the image-circle coverage.
-Optional eclipse hooks: see ``_hooks`` and /work notes of the renderer.
+Optional eclipse hooks (modules domegen.render.eclipse_solar / eclipse_lunar,
+consulted only near syzygy): see ``eclipse_modules``.
 """
 
 from __future__ import annotations
@@ -320,5 +321,4 @@ def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, ou
         alpha = ctx.overlay_alpha * alpha
     for k in range(3):
         ctx.rgb[k] *= alpha
-    ctx.info["bodies"] = [b for b in ctx.info["bodies"]]
     return RenderedFrame(rgb=ctx.rgb, alpha=alpha, info=ctx.info)
