@@ -98,7 +98,9 @@ def saros_number(lunation):
 
 
 def _tt_jd_from_utc(dt: datetime) -> float:
-    return float(timescale().from_datetime(dt.astimezone(timezone.utc)).tt)
+    from domegen.sky.times import to_time
+
+    return float(to_time(dt.astimezone(timezone.utc)).tt)
 
 
 def _parabola_min(tt, h):
@@ -143,7 +145,9 @@ def _solve_contacts(tg, sign, which, geo_g):
 
 
 def _utc(tt_jd: float) -> datetime:
-    return timescale().tt_jd(float(tt_jd)).utc_datetime().replace(tzinfo=timezone.utc)
+    from domegen.sky.times import from_time
+
+    return from_time(timescale().tt_jd(float(tt_jd)))
 
 
 def find_lunar_eclipses(start_utc: datetime, end_utc: datetime) -> list[LunarEclipse]:
