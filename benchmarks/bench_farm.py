@@ -33,7 +33,7 @@ from domegen.scene import load_scene  # noqa: E402
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--frames", type=int, default=6)
+    ap.add_argument("--frames", type=int, default=24)
     ap.add_argument("--size", type=int, default=4096)
     ap.add_argument("--sheet-only", action="store_true")
     args = ap.parse_args()
