@@ -288,13 +288,16 @@ def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, ou
     if ev is None:
         ev = _auto_exposure(model, light, layers, sky, sky_dirs)
     n = camera.size_px
+    # the wide part of the Sun's veiling glare rides on the coarse sky (after the exposure is chosen)
+    from domegen.render.layer_bodies import add_coarse_glare
+
+    add_coarse_glare(sky, sky_dirs, bodies, model, light, layers.sun)
     if out is None or out.shape != (3, n, n) or out.dtype != np.float32:
         out = np.empty((3, n, n), dtype=np.float32)
-    if layers.atmosphere * layers.sky_dimming > 0:
+    if np.any(sky):
         upsample_into(out, sky)
     else:
         out[...] = 0.0
-        sky[...] = 0.0
     ctx = RenderContext(spec=spec, rgb=out, bodies=bodies, stars=stars, sky_coarse=sky,
                         sky_model=model, light=light, exposure_ev=float(ev), eclipse_modules=mods,
                         info={"exposure_ev": round(float(ev), 4), "bodies": [],

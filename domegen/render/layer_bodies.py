@@ -41,9 +41,60 @@ EARTHSHINE_RATIO = 1e-4
 EARTHSHINE_TINT = np.array([0.90, 1.0, 1.13])
 MOON_FULL_V = -12.73
 MEAN_MOON_KM = 384_400.0
-GLARE_FRACTION = 2e-3
-GLARE_CORE_DEG = 0.4
-GLARE_RADIUS_DEG = 12.0
+#: Veiling glare around the Sun: CIE disability glare, young observer (CIE 146:2002, simplified
+#: Stiles-Holladay): L = 10 E / theta^2 cd/m^2 (E lux, theta deg), held flat inside GLARE_MIN_DEG and
+#: tapered by (1 - theta/GLARE_MAX_DEG)^2 to vanish at GLARE_MAX_DEG.
+GLARE_K = 10.0
+GLARE_MIN_DEG = 0.1
+GLARE_MAX_DEG = 30.0
+#: Drawn per pixel inside GLARE_FINE_DEG, on the coarse sky grid outside GLARE_BLEND_DEG (blended between).
+GLARE_BLEND_DEG = 3.0
+GLARE_FINE_DEG = 6.0
+
+
+def glare_profile(theta_deg) -> np.ndarray:
+    """Veiling-glare radiance per lux of source illuminance, cd/m^2 / lx, at theta_deg from the source."""
+    t = np.asarray(theta_deg, dtype=float)
+    core = GLARE_K / np.maximum(t, GLARE_MIN_DEG) ** 2
+    return np.where(t < GLARE_MAX_DEG, core * (1.0 - t / GLARE_MAX_DEG) ** 2, 0.0)
+
+
+def _glare_fraction() -> float:
+    """Share of the source's light the glare carries: integral of the profile over solid angle (sr)."""
+    t = np.linspace(0.0, GLARE_MAX_DEG, 200_001)
+    f = glare_profile(t) * np.sin(np.radians(t)) * 2 * np.pi
+    return float(np.sum(0.5 * (f[1:] + f[:-1]) * np.diff(np.radians(t))))
+
+
+#: 0.118 for the constants above: the disk keeps the rest, so the total stays E.
+GLARE_TOTAL_FRACTION = _glare_fraction()
+
+
+def glare_fine_weight(theta_deg) -> np.ndarray:
+    """Share of the glare drawn per pixel (1 near the Sun, 0 beyond GLARE_FINE_DEG)."""
+    return np.clip((GLARE_FINE_DEG - np.asarray(theta_deg, dtype=float)) / (GLARE_FINE_DEG - GLARE_BLEND_DEG),
+                   0.0, 1.0)
+
+
+def sun_lux_rgb(bodies, sky_model, light, opacity: float) -> np.ndarray | None:
+    """Sun's illuminance per channel at the site (extinction, eclipse fraction, opacity), or None if set."""
+    i = bodies.index("Sun")
+    alt = float(bodies.alt_refracted_deg[i, 0])
+    if opacity <= 0 or alt < -2.0:
+        return None
+    trans = np.asarray(sky_model.transmittance(np.array(alt), light)).reshape(3)
+    return lux_from_v(bodies.magnitude[i, 0]) * trans * opacity * light.sun_visible_fraction
+
+
+def add_coarse_glare(sky: np.ndarray, dirs: np.ndarray, bodies, sky_model, light, opacity: float) -> None:
+    """Add the wide part of the Sun's glare to the coarse sky (3, m, m) at directions (3, m, m)."""
+    e = sun_lux_rgb(bodies, sky_model, light, opacity)
+    if e is None or light.sun_alt_deg <= -1.0:
+        return
+    c = bodies.enu_refracted[bodies.index("Sun"), :, 0]
+    theta = np.degrees(np.arccos(np.clip(np.tensordot(c, dirs, axes=(0, 0)), -1.0, 1.0)))
+    g = glare_profile(theta) * (1.0 - glare_fine_weight(theta))
+    sky += (e[:, None, None] * g[None]).astype(np.float32)
 
 
 def lux_from_v(v) -> np.ndarray:
@@ -128,10 +179,10 @@ def draw_sun(ctx, opacity: float) -> None:
     x, y, theta = ctx.project(c)
     if ctx.in_circle(theta, math.radians(b.angular_radius_deg[i, 0])):
         _body_info(ctx, "Sun", alt, b.az_deg[i, 0], x, y)
-    if opacity <= 0 or alt < -2.0:
+    e_rgb = sun_lux_rgb(b, ctx.sky_model, ctx.light, opacity)
+    if e_rgb is None:
         return
-    trans = ctx.sky_model.transmittance(np.array(alt), ctx.light)
-    e_rgb = lux_from_v(b.magnitude[i, 0]) * np.asarray(trans).reshape(3) * opacity * ctx.light.sun_visible_fraction
+    glare = ctx.light.sun_alt_deg > -1.0
     r = math.radians(float(b.angular_radius_deg[i, 0]))
     box = ctx.box(c, math.degrees(r))
     if any(getattr(m, "draws_sun_disk", lambda _ctx: False)(ctx) for m in ctx.eclipse_modules):
@@ -147,29 +198,26 @@ def draw_sun(ctx, opacity: float) -> None:
         total = (shade * omega[..., None]).sum(axis=(0, 1))
         if np.all(total > 0):
             y0, y1, x0, x1 = box
-            rad = shade * (e_rgb / total)[None, None, :]
+            disk_share = 1.0 - GLARE_TOTAL_FRACTION if glare else 1.0
+            rad = shade * (e_rgb * disk_share / total)[None, None, :]
             for k in range(3):
                 ctx.rgb[k, y0:y1, x0:x1] += rad[..., k].astype(np.float32)
             _note_disk(ctx, rad, cov)
-    if ctx.light.sun_alt_deg > -1.0:
-        _draw_glare(ctx, c, e_rgb * GLARE_FRACTION)
+    if glare:
+        _draw_glare(ctx, c, e_rgb)
 
 
 def _draw_glare(ctx, c, e_rgb) -> None:
-    box = ctx.box(c, GLARE_RADIUS_DEG, pad_px=0)
+    """The near part of the glare, per pixel (the far part is on the coarse sky grid)."""
+    box = ctx.box(c, GLARE_FINE_DEG, pad_px=0)
     if box is None:
         return
     dirs = ctx.window_dirs(box)
     chi = np.degrees(np.arccos(np.clip(dirs @ c, -1.0, 1.0)))
-    prof = np.where(chi < GLARE_RADIUS_DEG, (1.0 + (chi / GLARE_CORE_DEG) ** 2) ** -1.5
-                    * (1.0 - chi / GLARE_RADIUS_DEG) ** 2, 0.0)
-    omega = ctx.omega(ctx.window_theta(box))
-    total = float((prof * omega).sum())
-    if total <= 0:
-        return
+    prof = glare_profile(chi) * glare_fine_weight(chi)
     y0, y1, x0, x1 = box
     for k in range(3):
-        ctx.rgb[k, y0:y1, x0:x1] += (prof * (e_rgb[k] / total)).astype(np.float32)
+        ctx.rgb[k, y0:y1, x0:x1] += (prof * e_rgb[k]).astype(np.float32)
 
 
 def draw_moon(ctx, opacity: float) -> None:

@@ -137,8 +137,13 @@ def test_sun_disk_carries_the_sun_illuminance():
     jj, ii = np.meshgrid(np.arange(256) + 0.5, np.arange(256) + 0.5)
     theta = np.hypot(jj - 128, ii - 128) / 128 * math.radians(0.6)
     e = (r.rgb[1] * pixel_solid_angle(cam, theta)).sum(dtype=np.float64)
-    glare_and_disk = LUX_AT_V0 * 10 ** (-0.4 * b.magnitude[0])   # no atmosphere: no extinction
-    assert 0.95 < e / glare_and_disk < 1.003   # the disk holds it all; the glare adds 0.2 % spread far outside
+    e_sun = LUX_AT_V0 * 10 ** (-0.4 * b.magnitude[0])   # no atmosphere: no extinction
+    # Veiling glare, CIE 146:2002 disability glare L = 10 E / theta^2 (theta in deg; flat below 0.1 deg,
+    # tapered to 0 at 30 deg): the part beyond this 0.6 deg radius frame is missing from the sum.
+    t = np.linspace(0.0, 30.0, 300_001)
+    prof = 10.0 / np.maximum(t, 0.1) ** 2 * (1 - t / 30.0) ** 2 * np.sin(np.radians(t)) * 2 * np.pi
+    outside = np.trapezoid(np.where(t > 0.6, prof, 0.0), np.radians(t))
+    assert abs(e / (e_sun * (1.0 - outside)) - 1.0) < 0.01
 
 
 def test_limb_darkening_law_values():
