@@ -86,11 +86,20 @@ def sun_lux_rgb(bodies, sky_model, light, opacity: float) -> np.ndarray | None:
     return lux_from_v(bodies.magnitude[i, 0]) * trans * opacity * light.sun_visible_fraction
 
 
+def glare_visible(bodies) -> float:
+    """Share of the solar disk above the apparent horizon (0..1): the glare fades as the Sun sets."""
+    i = bodies.index("Sun")
+    r = float(bodies.angular_radius_deg[i, 0])
+    return float(np.clip((float(bodies.alt_refracted_deg[i, 0]) + r) / (2 * r), 0.0, 1.0))
+
+
 def add_coarse_glare(sky: np.ndarray, dirs: np.ndarray, bodies, sky_model, light, opacity: float) -> None:
     """Add the wide part of the Sun's glare to the coarse sky (3, m, m) at directions (3, m, m)."""
     e = sun_lux_rgb(bodies, sky_model, light, opacity)
-    if e is None or light.sun_alt_deg <= -1.0:
+    vis = glare_visible(bodies)
+    if e is None or vis <= 0:
         return
+    e = e * vis
     c = bodies.enu_refracted[bodies.index("Sun"), :, 0]
     theta = np.degrees(np.arccos(np.clip(np.tensordot(c, dirs, axes=(0, 0)), -1.0, 1.0)))
     g = glare_profile(theta) * (1.0 - glare_fine_weight(theta))
@@ -182,7 +191,8 @@ def draw_sun(ctx, opacity: float) -> None:
     e_rgb = sun_lux_rgb(b, ctx.sky_model, ctx.light, opacity)
     if e_rgb is None:
         return
-    glare = ctx.light.sun_alt_deg > -1.0
+    vis = glare_visible(b)
+    glare = vis > 0
     r = math.radians(float(b.angular_radius_deg[i, 0]))
     box = ctx.box(c, math.degrees(r))
     if any(getattr(m, "draws_sun_disk", lambda _ctx: False)(ctx) for m in ctx.eclipse_modules):
@@ -198,13 +208,13 @@ def draw_sun(ctx, opacity: float) -> None:
         total = (shade * omega[..., None]).sum(axis=(0, 1))
         if np.all(total > 0):
             y0, y1, x0, x1 = box
-            disk_share = 1.0 - GLARE_TOTAL_FRACTION if glare else 1.0
+            disk_share = 1.0 - GLARE_TOTAL_FRACTION * vis
             rad = shade * (e_rgb * disk_share / total)[None, None, :]
             for k in range(3):
                 ctx.rgb[k, y0:y1, x0:x1] += rad[..., k].astype(np.float32)
             _note_disk(ctx, rad, cov)
     if glare:
-        _draw_glare(ctx, c, e_rgb)
+        _draw_glare(ctx, c, e_rgb * vis)
 
 
 def _draw_glare(ctx, c, e_rgb) -> None:
