@@ -8,6 +8,7 @@ with the frame number, show time and local sky time.
 from __future__ import annotations
 
 import io
+import subprocess
 from dataclasses import replace
 from pathlib import Path
 
@@ -71,17 +72,27 @@ def write_preview(scene, path: Path, *, size_px: int = 256, every: int = 1, prog
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
     tmp = path.with_name(f".{path.stem}.part{path.suffix}")
-    writer = imageio_ffmpeg.write_frames(str(tmp), (size_px, size_px), fps=scene.output.fps / every,
-                                         codec="libx264", pix_fmt_in="rgb24", macro_block_size=16,
-                                         ffmpeg_log_level="error", output_params=["-movflags", "+faststart"])
-    writer.send(None)
+    cmd = [imageio_ffmpeg.get_ffmpeg_exe(), "-y", "-loglevel", "error", "-f", "rawvideo", "-pix_fmt", "rgb24",
+           "-s", f"{size_px}x{size_px}", "-r", f"{scene.output.fps / every:g}", "-i", "-",
+           "-c:v", "libx264", "-pix_fmt", "yuv420p", "-movflags", "+faststart", "-f", "mp4", str(tmp)]
+    proc = subprocess.Popen(cmd, stdin=subprocess.PIPE, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     try:
         for n in frames:
             img = burn_in(thumbnail(scene, n, size_px), frame_label(scene, n), scale=size_px / 256)
-            writer.send(np.ascontiguousarray(img).tobytes())
+            proc.stdin.write(np.ascontiguousarray(img).tobytes())
             if progress is not None:
                 progress.advance()
+        proc.stdin.close()
+        err = proc.stderr.read().decode(errors="replace")
+        if proc.wait() != 0:
+            raise InputError(f"ffmpeg could not write {path}: {err.strip()[:200]}", field="--output",
+                             value=str(path))
     finally:
-        writer.close()
+        for f in (proc.stdin, proc.stderr):
+            if not f.closed:
+                f.close()
+        if proc.poll() is None:
+            proc.kill()
+            proc.wait()
     tmp.replace(path)
     return len(frames)

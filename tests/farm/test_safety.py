@@ -96,3 +96,19 @@ def test_progress_lines_and_bar():
     p = Progress(4, stream=tty, tty=True)
     p.advance()
     assert "\r[#######" in tty.getvalue() and "ETA" in tty.getvalue()
+
+
+def test_disk_estimate_is_redone_from_real_sizes(tmp_path, monkeypatch):
+    """Noise frames do not compress: after 4 frames the measured sizes show the rest cannot fit."""
+    import collections
+
+    from domegen.farm import plan
+
+    scene = load_scene(write_scene(tmp_path))
+    usage = collections.namedtuple("usage", "total used free")
+    # room for the pixel-count guess (8 x 4 KiB) but not for 4 more frames of 16 KiB each
+    monkeypatch.setattr(plan.shutil, "disk_usage",
+                        lambda p: usage(0, 0, plan.DISK_MARGIN_BYTES + 40_000))
+    with pytest.raises(InputError, match="need about"):
+        render_scene(scene, workers=1, producer=FAKE)
+    assert len(list((tmp_path / "out").glob("f_*.png"))) == 4

@@ -160,3 +160,19 @@ def test_frame_spec_is_a_pure_function_of_scene_and_number(tmp_path):
     assert all(copy.frame_spec(n) == first[n] for n in reversed(order))
     with pytest.raises(Exception):
         s.frame_spec(s.frame_count)
+
+
+def test_venue_by_place_name_and_json_summary(tmp_path, capsys):
+    import json
+
+    p = tmp_path / "s.yaml"
+    p.write_text("venue: {place: Nantes, elevation: 20}\ndome: {size: 128}\noutput: {folder: out}\n"
+                 "shots:\n  - {duration: 1 s, sky: {start: '2026-03-20 21:00'}}\n")
+    s = load_scene(p)
+    # GeoNames position of Nantes (about 47.22 N, 1.55 W), zone Europe/Paris
+    assert s.site.lat_deg == pytest.approx(47.22, abs=0.05) and s.site.lon_deg == pytest.approx(-1.55, abs=0.05)
+    assert s.site.timezone == "Europe/Paris"
+    assert main(["check", str(p), "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["frame_count"] == 30 and d["sky_span"]["start_utc"] == "2026-03-20T20:00:00Z"
+    assert d["sky_span"]["start_local"] == "2026-03-20T21:00:00+01:00"
