@@ -59,14 +59,14 @@ def summary_text(scene) -> str:
     v = d["venue"]
     lines = [
         f"scene      {d['scene']}" + (f"  ({d['title']})" if d["title"] else ""),
-        f"venue      {v.get('name') or ''} {v['lat_deg']:.4f}, {v['lon_deg']:.4f}, {v['elev_m']:g} m, "
-        f"{v['timezone']}".replace("      ", "      ", 1),
+        f"venue      {(v.get('name') or '') + ' ' if v.get('name') else ''}{v['lat_deg']:.4f}, "
+        f"{v['lon_deg']:.4f}, {v['elev_m']:g} m, {v['timezone']}",
         f"dome       {d['dome']['size']} px, field {d['dome']['field']:g} deg, front azimuth "
         f"{d['dome']['front_azimuth']:g} deg, tilt {d['dome']['tilt']:g} deg",
         f"output     {d['output']['folder']}/{d['output']['file_pattern']}  ({d['output']['format']}, "
         f"{d['output']['bit_depth']} bit, {fps:g} fps)",
         f"frames     {d['frame_count']} (0-{d['frame_count'] - 1})",
-        f"show time  {show_clock(d['show_duration_s'], fps)} ({d['show_duration_s']:g} s)",
+        f"show time  {show_clock(d['show_duration_s'], fps)} (H:MM:SS:FF, {d['show_duration_s']:g} s)",
         f"sky time   {d['sky_span']['start_local']} to {d['sky_span']['end_local']}"
         f"  ({d['sky_span']['start_utc']} to {d['sky_span']['end_utc']}, "
         f"{show_clock(d['sky_span']['length_s'])})",
