@@ -67,3 +67,19 @@ def test_scale_makes_drafts(tmp_path):
     with Image.open(tmp_path / "draft" / "f_000.png") as im:
         assert im.size == (64, 64)
     assert not (tmp_path / "draft" / "f_002.png").exists()
+
+
+def test_the_demo_example_scene_renders_small(tmp_path, capsys):
+    """The README's main job, at 1/8 size and the first and last frames only."""
+    from pathlib import Path
+
+    demo = Path(__file__).resolve().parents[2] / "scenes" / "demo.yaml"
+    out = tmp_path / "demo"
+    assert main(["render", str(demo), "--scale", "0.125", "--frames", "0-1,29", "--out", str(out),
+                 "--workers", "1"]) == 0
+    assert sorted(p.name for p in out.glob("demo_*.png")) == ["demo_0000.png", "demo_0001.png", "demo_0029.png"]
+    with Image.open(out / "demo_0000.png") as im:
+        assert im.size == (64, 64)
+    # sunset (frame 0) under automatic exposure still shows a sky: not a black frame
+    assert _mean_rgb(out / "demo_0000.png") > 10
+    assert "3 frames rendered" in capsys.readouterr().err
