@@ -46,16 +46,9 @@ _VECTORS = ("enu", "enu_refracted", "gcrs_au")
 
 
 @dataclass(frozen=True)
-class BodyTable:
-    """Positions of several bodies over N instants.
+class _BodyArrays:
+    """Fields shared by a table of bodies and one body's row (see :class:`BodyTable`)."""
 
-    Scalar fields are (B, N) arrays, vectors (B, 3, N); ``body(name)`` slices one.
-    Altitudes and azimuths in degrees (azimuth from north through east),
-    RA in hours and Dec in degrees of the true equator and equinox of date,
-    distances in km, ``enu`` unit vectors in the site's horizon frame.
-    """
-
-    names: tuple
     utc_s: np.ndarray
     alt_deg: np.ndarray
     alt_refracted_deg: np.ndarray
@@ -71,6 +64,19 @@ class BodyTable:
     enu: np.ndarray
     enu_refracted: np.ndarray
     gcrs_au: np.ndarray
+
+
+@dataclass(frozen=True)
+class BodyTable(_BodyArrays):
+    """Positions of several bodies over N instants.
+
+    Scalar fields are (B, N) arrays, vectors (B, 3, N); ``body(name)`` slices one.
+    Altitudes and azimuths in degrees (azimuth from north through east),
+    RA in hours and Dec in degrees of the true equator and equinox of date,
+    distances in km, ``enu`` unit vectors in the site's horizon frame.
+    """
+
+    names: tuple = ()
 
     def index(self, name: str) -> int:
         try:
@@ -81,29 +87,15 @@ class BodyTable:
 
     def body(self, name: str) -> "BodyState":
         i = self.index(name)
-        return BodyState(name, self.utc_s, *(getattr(self, f)[i] for f in _FIELDS + _VECTORS))
+        rows = {f: getattr(self, f)[i] for f in _FIELDS + _VECTORS}
+        return BodyState(name=name, utc_s=self.utc_s, **rows)
 
 
 @dataclass(frozen=True)
-class BodyState:
+class BodyState(_BodyArrays):
     """One body's row of a :class:`BodyTable`: fields shaped (N,), vectors (3, N)."""
 
-    name: str
-    utc_s: np.ndarray
-    alt_deg: np.ndarray
-    alt_refracted_deg: np.ndarray
-    az_deg: np.ndarray
-    ra_hours: np.ndarray
-    dec_deg: np.ndarray
-    distance_km: np.ndarray
-    angular_radius_deg: np.ndarray
-    phase_angle_deg: np.ndarray
-    illuminated_fraction: np.ndarray
-    bright_limb_pa_deg: np.ndarray
-    magnitude: np.ndarray
-    enu: np.ndarray
-    enu_refracted: np.ndarray
-    gcrs_au: np.ndarray
+    name: str = ""
 
 
 def _as_seconds(utc_s) -> np.ndarray:
