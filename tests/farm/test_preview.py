@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import subprocess
 
 import numpy as np
@@ -22,8 +23,14 @@ def test_preview_writes_a_readable_mp4(tmp_path, capsys):
     decoded = subprocess.run([imageio_ffmpeg.get_ffmpeg_exe(), "-loglevel", "error", "-i", str(out),
                               "-f", "rawvideo", "-pix_fmt", "rgb24", "-"], capture_output=True, check=True).stdout
     assert len(decoded) == 4 * 64 * 64 * 3          # 8 frames, every 2nd: 4 pictures of 64 x 64
-    nframes, seconds = imageio_ffmpeg.count_frames_and_secs(str(out))
-    assert nframes == 4 and seconds == pytest.approx(2.0)  # 4 pictures over the show's 2 s
+    # ffmpeg's own report of the container duration (subprocess.run closes its pipes; imageio-ffmpeg's
+    # count_frames_and_secs left them to the garbage collector, a ResourceWarning under -W error).
+    probe = subprocess.run([imageio_ffmpeg.get_ffmpeg_exe(), "-hide_banner", "-i", str(out)],
+                           capture_output=True, text=True).stderr
+    match = re.search(r"Duration: (\d+):(\d+):([\d.]+)", probe)
+    assert match, probe
+    seconds = int(match[1]) * 3600 + int(match[2]) * 60 + float(match[3])
+    assert seconds == pytest.approx(2.0, abs=0.05)  # 4 pictures over the show's 2 s
     assert main(["preview", str(scene), "--size", "50"]) == 2
     assert "multiple of 16" in capsys.readouterr().err
 
