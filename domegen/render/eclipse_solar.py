@@ -50,6 +50,16 @@ PROMINENCE_REACH = 0.09          # solar radii above the limb that may hold emis
 _SUBSAMPLE_TARGET_RAD = math.radians(4.0 / 3600.0)
 _MAX_SUB = 16
 _CHUNK = 1 << 21
+#: Near-field glare of the last beads (the "diamond"): the disability-glare law L = K E / theta^2
+#: (CIE 146:2002, K = 10 cd/m^2 per lx, theta in degrees) continued inside BLOOM_OUTER_DEG, where the
+#: Sun-centred glare of layer_bodies is held flat, down to one pixel, around each photospheric pixel.
+#: Only while the visible photosphere is below BLOOM_MAX_FRACTION: at larger fractions the flare lies
+#: inside the bright crescent itself, and filtered close-ups would be fogged by an eye effect.
+BLOOM_K = 10.0
+BLOOM_OUTER_DEG = 0.1
+BLOOM_MAX_FRACTION = 1e-3
+#: Luminance (cd/m^2) above which a pixel holds photosphere (the inner corona is ~1e4, prominences ~1e5).
+PHOTOSPHERE_MIN_CD_M2 = 1e6
 
 
 def _disk_mean_ratio() -> np.ndarray:
@@ -319,5 +329,37 @@ def paint(ctx) -> None:
     h, w = patch.rgb.shape[:2]
     for k in range(3):
         ctx.rgb[k, patch.y0:patch.y0 + h, patch.x0:patch.x0 + w] += patch.rgb[..., k]
+    vis = float(ctx.light.sun_visible_fraction)
+    if 0.0 < vis < BLOOM_MAX_FRACTION:
+        _bead_bloom(ctx, patch, 1.0 - vis / BLOOM_MAX_FRACTION)
     ctx.info["solar_eclipse"] = {"visible_fraction": round(float(ctx.light.sun_visible_fraction), 8),
                                  "separation_deg": round(math.degrees(float(geom.sep_rad[0])), 6)}
+
+
+def bead_bloom_kernel(deg_per_px: float) -> np.ndarray | None:
+    """Near-field glare per lux of a source pixel, cd/m^2 / lx, on a (2R+1)^2 pixel grid (None if < 1 px)."""
+    if deg_per_px >= BLOOM_OUTER_DEG:
+        return None
+    r = int(math.ceil(BLOOM_OUTER_DEG / deg_per_px))
+    yy, xx = np.mgrid[-r:r + 1, -r:r + 1]
+    theta = np.maximum(np.hypot(xx, yy) * deg_per_px, deg_per_px)
+    return np.clip(BLOOM_K * (1.0 / theta**2 - 1.0 / BLOOM_OUTER_DEG**2), 0.0, None)
+
+
+def _bead_bloom(ctx, patch: Patch, weight: float) -> None:
+    """Spread each photospheric pixel's illuminance with the near-field glare kernel (in place)."""
+    from scipy.signal import fftconvolve
+
+    kernel = bead_bloom_kernel(math.degrees(ctx.rad_per_px))
+    if kernel is None:
+        return
+    lum = patch.rgb @ np.array([0.2126, 0.7152, 0.0722], dtype=np.float32)
+    photo = lum > PHOTOSPHERE_MIN_CD_M2
+    if not photo.any():
+        return
+    h, w = lum.shape
+    box = (patch.y0, patch.y0 + h, patch.x0, patch.x0 + w)
+    omega = ctx.omega(ctx.window_theta(box))
+    for k in range(3):
+        e = np.where(photo, patch.rgb[..., k] * omega, 0.0)      # lux per pixel
+        ctx.rgb[k, box[0]:box[1], box[2]:box[3]] += (weight * fftconvolve(e, kernel, mode="same")).astype(np.float32)
