@@ -61,15 +61,41 @@ def _colour(ctx, name: str, gain: float = 0.85) -> np.ndarray:
 
 
 def _composite_line(ctx, dist_deg: np.ndarray, name: str, opacity: float) -> None:
+    """Blend a line whose per-pixel angular distance is ``dist_deg`` (H, W), over the pixels it covers."""
     half = _width_px(ctx, name) / 2.0
-    cov = np.clip(half + 0.5 - dist_deg / np.float32(ctx.deg_per_px), 0.0, 1.0) * np.float32(opacity)
+    idx = np.flatnonzero(dist_deg < np.float32((half + 0.5) * ctx.deg_per_px))
+    _composite_at(ctx, idx, dist_deg.reshape(-1)[idx], name, opacity)
+
+
+def _composite_great_circle(ctx, sin_dist: np.ndarray, name: str, opacity: float) -> None:
+    """Blend a great circle given |sin| of each pixel's distance from it (H, W); arcsin only near the line."""
+    half = _width_px(ctx, name) / 2.0
+    reach = np.float32(math.sin(math.radians(min((half + 0.5) * ctx.deg_per_px, 90.0))))
+    idx = np.flatnonzero(sin_dist < reach)
+    dist = np.degrees(np.arcsin(np.minimum(sin_dist.reshape(-1)[idx], 1.0)))
+    _composite_at(ctx, idx, dist, name, opacity)
+
+
+def _composite_at(ctx, idx: np.ndarray, dist_deg: np.ndarray, name: str, opacity: float) -> None:
+    """Anti-aliased coverage from distances at flat pixel indices ``idx``; other pixels are untouched."""
+    if idx.size == 0:
+        return
+    half = _width_px(ctx, name) / 2.0
+    cov = (np.clip(half + 0.5 - dist_deg / np.float32(ctx.deg_per_px), 0.0, 1.0) * np.float32(opacity)
+           ).astype(np.float32)
     col = _colour(ctx, name)
     for k in range(3):
-        p = ctx.rgb[k]
-        p *= 1.0 - cov
-        p += cov * np.float32(col[k])
+        p = ctx.rgb[k].reshape(-1)
+        p[idx] = p[idx] * (1.0 - cov) + cov * np.float32(col[k])
     if ctx.overlay_alpha is not None:
-        ctx.overlay_alpha += cov * (1.0 - ctx.overlay_alpha)
+        a = ctx.overlay_alpha.reshape(-1)
+        a[idx] += cov * (1.0 - a[idx])
+
+
+def _dot(g: np.ndarray, v: np.ndarray) -> np.ndarray:
+    """(H, W, 3) . (3,) -> (H, W) float32 without BLAS (its threads only add contention for 3 terms)."""
+    v = np.asarray(v, dtype=np.float32)
+    return g[..., 0] * v[0] + g[..., 1] * v[1] + g[..., 2] * v[2]
 
 
 def _nearest(v: np.ndarray, step: float) -> np.ndarray:
@@ -104,8 +130,8 @@ def draw_overlays(ctx) -> None:
     if lines:
         g = ctx.grid
         z = g[..., 2]
-        alt = np.degrees(np.arcsin(np.clip(z, -1.0, 1.0)))
         if op["grid_altaz"] > 0:
+            alt = np.degrees(np.arcsin(np.clip(z, -1.0, 1.0)))
             az = np.degrees(np.arctan2(g[..., 0], g[..., 1]))
             d_alt = _nearest(alt, GRID_ALT_STEP_DEG)
             d_az = _nearest(az, GRID_AZ_STEP_DEG) * np.cos(np.radians(alt))
@@ -114,26 +140,25 @@ def draw_overlays(ctx) -> None:
             _composite_line(ctx, np.minimum(d_alt, d_az), "grid_altaz", op["grid_altaz"])
         if op["grid_equatorial"] > 0 or op["equator"] > 0 or op["ecliptic"] > 0:
             r = _eq_rotation(ctx).astype(np.float32)   # equatorial -> ENU
-            ez = g @ r[:, 2]
-            dec = np.degrees(np.arcsin(np.clip(ez, -1.0, 1.0)))
+            if op["grid_equatorial"] > 0 or op["equator"] > 0:
+                ez = _dot(g, r[:, 2])
             if op["grid_equatorial"] > 0:
-                ra = np.degrees(np.arctan2(g @ r[:, 1], g @ r[:, 0]))
+                dec = np.degrees(np.arcsin(np.clip(ez, -1.0, 1.0)))
+                ra = np.degrees(np.arctan2(_dot(g, r[:, 1]), _dot(g, r[:, 0])))
                 d_dec = _nearest(dec, GRID_ALT_STEP_DEG)
                 d_ra = _nearest(ra, 15.0 * GRID_RA_STEP_H) * np.cos(np.radians(dec))
                 d_ra = np.where(np.abs(dec) > 80.0, 90.0, d_ra)
                 _composite_line(ctx, np.minimum(d_dec, d_ra), "grid_equatorial", op["grid_equatorial"])
             if op["equator"] > 0:
-                _composite_line(ctx, np.abs(dec), "equator", op["equator"])
+                _composite_great_circle(ctx, np.abs(ez), "equator", op["equator"])
             if op["ecliptic"] > 0:
                 eps = math.radians(OBLIQUITY_DEG)
                 pole = r @ np.array([0.0, -math.sin(eps), math.cos(eps)], dtype=np.float32)
-                _composite_line(ctx, np.degrees(np.arcsin(np.minimum(np.abs(g @ pole), 1.0))), "ecliptic",
-                                op["ecliptic"])
+                _composite_great_circle(ctx, np.abs(_dot(g, pole)), "ecliptic", op["ecliptic"])
         if op["horizon_line"] > 0:
-            _composite_line(ctx, np.abs(alt), "horizon_line", op["horizon_line"])
+            _composite_great_circle(ctx, np.abs(z), "horizon_line", op["horizon_line"])
         if op["meridian"] > 0:
-            _composite_line(ctx, np.degrees(np.arcsin(np.minimum(np.abs(g[..., 0]), 1.0))), "meridian",
-                            op["meridian"])
+            _composite_great_circle(ctx, np.abs(g[..., 0]), "meridian", op["meridian"])
     if op["cardinals"] > 0:
         _cardinals(ctx, op["cardinals"])
     if op["labels"] > 0:
