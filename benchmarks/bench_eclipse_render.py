@@ -18,15 +18,12 @@ CPU seconds of this process (core-seconds), wall time in brackets.
 from __future__ import annotations
 
 import argparse
-import time
 
 import numpy as np
 
+from _timing import timed
 
-def _timed(fn):
-    c0, w0 = time.process_time(), time.perf_counter()
-    out = fn()
-    return out, time.process_time() - c0, time.perf_counter() - w0
+
 
 
 def main() -> None:
@@ -58,15 +55,15 @@ def main() -> None:
 
     real = frame.eclipse_modules
     frame.eclipse_modules = lambda b: []
-    _, c_plain, w_plain = _timed(lambda: frame.render_frame(spec, bodies=bodies, stars=stars, out=out))
+    _, c_plain, w_plain = timed(lambda: frame.render_frame(spec, bodies=bodies, stars=stars, out=out))
     frame.eclipse_modules = real
-    _, c_ecl, w_ecl = _timed(lambda: frame.render_frame(spec, bodies=bodies, stars=stars, out=out))
+    _, c_ecl, w_ecl = timed(lambda: frame.render_frame(spec, bodies=bodies, stars=stars, out=out))
 
     g = disk_geometry(site, u)
-    _, c_patch, w_patch = _timed(lambda: sun_patch(spec.camera, site, u, geom=g))
+    _, c_patch, w_patch = timed(lambda: sun_patch(spec.camera, site, u, geom=g))
     f = shadow_function(g)
     pts = np.random.default_rng(0).normal(0, 3e5, (3, 1_000_000))
-    _, c_sh, w_sh = _timed(lambda: f(pts))
+    _, c_sh, w_sh = timed(lambda: f(pts))
 
     print(f"{args.size} px totality dome frame, {utc.isoformat()}")
     print(f"  plain (hooks off)   {c_plain:7.2f} s CPU  [{w_plain:6.2f} s wall]")

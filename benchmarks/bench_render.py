@@ -15,16 +15,13 @@ from __future__ import annotations
 
 import argparse
 import resource
-import time
 from datetime import datetime, timezone
 
 import numpy as np
 
+from _timing import timed
 
-def _timed(fn):
-    c0, w0 = time.process_time(), time.perf_counter()
-    out = fn()
-    return out, time.process_time() - c0, time.perf_counter() - w0
+
 
 
 def main() -> None:
@@ -52,8 +49,8 @@ def main() -> None:
     site = Site(47.2184, -1.5536, 20.0, timezone="Europe/Paris")
     when = datetime(2026, 8, 12, 22, 30, tzinfo=timezone.utc)
     layers = LayerSpec()
-    bodies, c_b, _ = _timed(lambda: body_positions(site, np.array([unix_seconds(when)])))
-    stars, c_s, _ = _timed(lambda: star_field(site, when, mag_limit=layers.star_mag_limit))
+    bodies, c_b, _ = timed(lambda: body_positions(site, np.array([unix_seconds(when)])))
+    stars, c_s, _ = timed(lambda: star_field(site, when, mag_limit=layers.star_mag_limit))
     print(f"positions (once per instant): bodies {c_b:.3f} s, {len(stars)} stars {c_s:.3f} s")
     # warm the sky model's caches on a small frame
     render_frame(FrameSpec(site, when, CameraSpec(size_px=256), layers), bodies=bodies, stars=stars)
@@ -61,14 +58,14 @@ def main() -> None:
     for n in args.sizes:
         camera = CameraSpec(size_px=n)
         spec = FrameSpec(site, when, camera, layers)
-        first, c_first, w_first = _timed(lambda: render_frame(spec, bodies=bodies, stars=stars))
-        again, c_comp, w_comp = _timed(lambda: render_frame(spec, bodies=bodies, stars=stars, out=first.rgb))
-        data, c_enc, w_enc = _timed(lambda: encode_frame(again, "png", 8))
+        first, c_first, w_first = timed(lambda: render_frame(spec, bodies=bodies, stars=stars))
+        again, c_comp, w_comp = timed(lambda: render_frame(spec, bodies=bodies, stars=stars, out=first.rgb))
+        data, c_enc, w_enc = timed(lambda: encode_frame(again, "png", 8))
         ev = again.info["exposure_ev"]
         codes = [tonemap.tone_map_plane(again.rgb[k], ev, 8) for k in range(3)] + [tonemap.alpha_codes(again.alpha, 8)]
         info, png_mb = again.info, len(data) / 1e6
         del first, again, data
-        _, c_floor, w_floor = _timed(lambda: encode_png(codes))
+        _, c_floor, w_floor = timed(lambda: encode_png(codes))
         total = c_comp + c_enc
         print(f"\n{n} px night frame ({info.get('stars_drawn', 0)} stars, {info['sky_model']}, "
               f"EV {ev:+.2f}), PNG {png_mb:.1f} MB")
@@ -83,7 +80,7 @@ def main() -> None:
         print(f"  peak resident memory of render + encode {peak:.2f} GiB")
         # the full direction grid (overlays, eclipse layers) is built once per camera, on first use
         cam.direction_grid.cache_clear()
-        _, c_grid, w_grid = _timed(lambda: cam.direction_grid(camera))
+        _, c_grid, w_grid = timed(lambda: cam.direction_grid(camera))
         print(f"  direction grid (once per camera, when used) {c_grid:6.3f} s  [{w_grid:.3f}]")
         peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 2 ** 20
         print(f"  peak resident memory with the grid {peak:.2f} GiB")

@@ -187,12 +187,13 @@ def lunar_events(site: Site, start_utc: datetime, end_utc: datetime) -> list[Sky
     """Lunar eclipses in the period with some phase above the site's horizon."""
     from domegen.eclipse.lunar import find_lunar_eclipses
 
-    out = []
-    for ecl in find_lunar_eclipses(start_utc, end_utc):
-        loc = lunar_at_site(ecl, site)
-        if loc.visible:
-            out.append(loc.as_event())
-    return out
+    return _visible_events(find_lunar_eclipses(start_utc, end_utc), lunar_at_site, site)
+
+
+def _visible_events(eclipses, at_site, site: Site) -> list[SkyEvent]:
+    """Events of the eclipses that ``at_site(eclipse, site)`` says are visible from the site."""
+    located = (at_site(ecl, site) for ecl in eclipses)
+    return [loc.as_event() for loc in located if loc.visible]
 
 
 # ----------------------------------------------------------------------------- solar
@@ -234,12 +235,7 @@ def solar_events(site: Site, start_utc: datetime, end_utc: datetime) -> list[Sky
     """Solar eclipses in the period that can be seen from the site (Sun up during some phase)."""
     from domegen.eclipse import find_solar_eclipses
 
-    out = []
-    for ecl in find_solar_eclipses(start_utc, end_utc):
-        loc = solar_at_site(ecl, site)
-        if loc.visible:
-            out.append(loc.as_event())
-    return out
+    return _visible_events(find_solar_eclipses(start_utc, end_utc), solar_at_site, site)
 
 
 def eclipse_at_site(day: str | date, site: Site) -> LocalEclipse:
