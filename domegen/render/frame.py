@@ -223,7 +223,8 @@ def upsample_into(planes: np.ndarray, coarse: np.ndarray) -> None:
     starts = np.searchsorted(iy, np.arange(m - 1), side="left")
     ends = np.searchsorted(iy, np.arange(m - 1), side="right")
     for k in range(3):
-        tmp = coarse[k][:, ix] * (1 - wx) + coarse[k][:, ix + 1] * wx         # (m, n)
+        # a column gather comes back column-major; its rows would be read with a 1 kB stride below
+        tmp = np.ascontiguousarray(coarse[k][:, ix] * (1 - wx) + coarse[k][:, ix + 1] * wx)   # (m, n)
         diff = tmp[1:] - tmp[:-1]
         for i in range(m - 1):  # coarse rows, not pixels
             r0, r1 = int(starts[i]), int(ends[i])
