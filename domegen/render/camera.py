@@ -128,6 +128,66 @@ def direction_grid(camera: CameraSpec) -> np.ndarray:
     return out
 
 
+#: Side of the pixel blocks screened before per-pixel work (see block_pixels).
+SCREEN_BLOCK_PX = 16
+
+
+@functools.lru_cache(maxsize=4)
+def block_centres(camera: CameraSpec) -> tuple[np.ndarray, np.ndarray]:
+    """ENU directions (3, nb, nb) float64 of the centres of SCREEN_BLOCK_PX blocks, and each
+    block's distance from the frame centre in circle radii (nb, nb)."""
+    n, bs = camera.size_px, SCREEN_BLOCK_PX
+    centres = (np.arange(-(-n // bs)) + 0.5) * bs
+    bx, by = np.meshgrid(centres, centres)
+    half = n / 2.0
+    return unproject(camera, bx, by), np.hypot(bx - half, by - half) / half
+
+
+def screen_reach_rad(camera: CameraSpec) -> float:
+    """An upper bound on the angle from a block's centre to any of its pixels, radians.
+
+    Neighbouring pixels are at most one pixel-angle apart (radially exactly,
+    across sin(theta)/theta of it), so half a block diagonal is covered by one block side.
+    """
+    return SCREEN_BLOCK_PX * rad_per_px(camera)
+
+
+def block_pixels(camera: CameraSpec, blocks: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Rows and columns (int64) of the pixels of the selected blocks ((nb, nb) bool) that lie in
+    the image circle or its anti-aliased rim."""
+    n, bs = camera.size_px, SCREEN_BLOCK_PX
+    iy, ix = np.nonzero(blocks)
+    off = np.arange(bs)
+    rows = np.broadcast_to(iy[:, None, None] * bs + off[None, :, None], (iy.size, bs, bs)).reshape(-1)
+    cols = np.broadcast_to(ix[:, None, None] * bs + off[None, None, :], (ix.size, bs, bs)).reshape(-1)
+    ok = (rows < n) & (cols < n)
+    rows, cols = rows[ok], cols[ok]
+    half = n / 2.0
+    inside = np.hypot(cols + 0.5 - half, rows + 0.5 - half) <= half * (1.0 + 2.0 / n)
+    return rows[inside], cols[inside]
+
+
+def near_great_circle(camera: CameraSpec, pole_enu, reach_rad: float) -> tuple[np.ndarray, np.ndarray]:
+    """Pixels less than ``reach_rad`` from the great circle with pole ``pole_enu`` (3,).
+
+    Returns flat pixel indices (int64, in the image circle and its rim) and
+    |sin| of each pixel's angular distance from the circle (float32): the
+    work scales with the line's length, not with the frame's area.
+    """
+    p = np.asarray(pole_enu, dtype=float).reshape(3)
+    p = p / np.linalg.norm(p)
+    dirs, rb = block_centres(camera)
+    n = camera.size_px
+    reach = min(reach_rad + screen_reach_rad(camera), math.pi / 2)
+    blocks = (np.abs(np.tensordot(p, dirs, axes=1)) < math.sin(reach)) & (rb <= 1.0 + 1.5 * SCREEN_BLOCK_PX / n)
+    rows, cols = block_pixels(camera, blocks)
+    d = unproject(camera, cols + 0.5, rows + 0.5, dtype=np.float32)
+    p32 = p.astype(np.float32)
+    s = np.abs(d[0] * p32[0] + d[1] * p32[1] + d[2] * p32[2])
+    keep = s < np.float32(math.sin(min(reach_rad, math.pi / 2)))
+    return rows[keep] * n + cols[keep], s[keep]
+
+
 def up_component_rows(camera: CameraSpec, r0: int, r1: int) -> np.ndarray:
     """ENU z (sine of altitude) of the pixel centres of rows r0..r1, (r1-r0, W) float32 (cheap: one component)."""
     n = camera.size_px

@@ -216,7 +216,8 @@ def sun_patch(camera, site, utc_s: float, *, seed: int = 0, geom: DiskGeometry |
     y0, y1 = max(0, int(math.floor(ys - rpx))), min(n, int(math.ceil(ys + rpx)))
     if x1 <= x0 or y1 <= y0:
         return None
-    grid = cam.direction_grid(camera)[y0:y1, x0:x1].reshape(-1, 3).T.astype(np.float64)
+    px, py = np.meshgrid(np.arange(x0, x1) + 0.5, np.arange(y0, y1) + 0.5)
+    grid = cam.unproject(camera, px, py).reshape(3, -1)   # the window only: no full-frame grid
     dirs = _true_dirs(site, grid)
     x, y = _plane_xy(fr, dirs)
     ok = np.isfinite(x)

@@ -89,28 +89,13 @@ def ground_geometry(camera, limit_deg: float):
     (a pixel is less than one pixel-angle from its neighbour), so only blocks
     that can hold ground are evaluated per pixel.
     """
-    from domegen.render.camera import rad_per_px, unproject
+    from domegen.render.camera import SCREEN_BLOCK_PX, block_centres, block_pixels, screen_reach_rad, unproject
 
     n = camera.size_px
     zmax = math.sin(math.radians(limit_deg))
-    bs = 16
-    nb = -(-n // bs)
-    centres = (np.arange(nb) + 0.5) * bs
-    bx, by = np.meshgrid(centres, centres)
-    dc = unproject(camera, bx, by)
-    reach = bs * rad_per_px(camera)           # angular half-size of a block, generously
-    half = n / 2.0
-    rb = np.hypot(bx - half, by - half) / half
-    cand = (dc[2] < zmax + reach) & (rb <= 1.0 + 1.5 * bs / n)
-    iy, ix = np.nonzero(cand)
-    off = np.arange(bs)
-    rows = (iy[:, None, None] * bs + off[None, :, None]) + 0 * off[None, None, :]
-    cols = (ix[:, None, None] * bs + off[None, None, :]) + 0 * off[None, :, None]
-    rows, cols = rows.reshape(-1), cols.reshape(-1)
-    ok = (rows < n) & (cols < n)
-    rows, cols = rows[ok], cols[ok]
-    inside = np.hypot(cols + 0.5 - half, rows + 0.5 - half) <= half * (1.0 + 2.0 / n)
-    rows, cols = rows[inside], cols[inside]
+    dc, rb = block_centres(camera)
+    cand = (dc[2] < zmax + screen_reach_rad(camera)) & (rb <= 1.0 + 1.5 * SCREEN_BLOCK_PX / n)
+    rows, cols = block_pixels(camera, cand)
     d = unproject(camera, cols + 0.5, rows + 0.5, dtype=np.float32)   # 1e-7 rad: far below a pixel
     low = d[2] < zmax
     sel = rows[low] * n + cols[low]

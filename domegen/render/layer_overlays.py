@@ -1,7 +1,8 @@
 """Guide lines, cardinal points and labels, in our own palette.
 
-Each line is drawn from the exact angular distance of every pixel's
-direction to the line (so widths are constant in degrees on the dome),
+Each line is drawn from the exact angular distance of a pixel's direction
+to the line (so widths are constant in degrees on the dome): great circles
+visit only the pixels along them, the coordinate grids every pixel; distances are
 converted to pixels and anti-aliased by a one-pixel ramp; widths never drop
 below 2 px at 4096 px (1.5 px on small frames).  Colours are display
 values: they are stored divided by the frame's exposure so they show at the
@@ -67,12 +68,13 @@ def _composite_line(ctx, dist_deg: np.ndarray, name: str, opacity: float) -> Non
     _composite_at(ctx, idx, dist_deg.reshape(-1)[idx], name, opacity)
 
 
-def _composite_great_circle(ctx, sin_dist: np.ndarray, name: str, opacity: float) -> None:
-    """Blend a great circle given |sin| of each pixel's distance from it (H, W); arcsin only near the line."""
+def _composite_great_circle(ctx, pole_enu, name: str, opacity: float) -> None:
+    """Blend the great circle with pole ``pole_enu`` (3,) over the pixels it covers (found along the line)."""
+    from domegen.render.camera import near_great_circle
+
     half = _width_px(ctx, name) / 2.0
-    reach = np.float32(math.sin(math.radians(min((half + 0.5) * ctx.deg_per_px, 90.0))))
-    idx = np.flatnonzero(sin_dist < reach)
-    dist = np.degrees(np.arcsin(np.minimum(sin_dist.reshape(-1)[idx], 1.0)))
+    idx, sin_dist = near_great_circle(ctx.camera, pole_enu, math.radians(min((half + 0.5) * ctx.deg_per_px, 90.0)))
+    dist = np.degrees(np.arcsin(np.minimum(sin_dist, 1.0)))
     _composite_at(ctx, idx, dist, name, opacity)
 
 
@@ -126,39 +128,36 @@ def ecliptic_pole_enu(site, utc_s: float) -> np.ndarray:
 def draw_overlays(ctx) -> None:
     """Every overlay layer with a non-zero opacity."""
     op = ctx.layers.opacities()
-    lines = [k for k in WIDTH_DEG if op[k] > 0]
-    if lines:
+    if op["grid_altaz"] > 0:
         g = ctx.grid
         z = g[..., 2]
-        if op["grid_altaz"] > 0:
-            alt = np.degrees(np.arcsin(np.clip(z, -1.0, 1.0)))
-            az = np.degrees(np.arctan2(g[..., 0], g[..., 1]))
-            d_alt = _nearest(alt, GRID_ALT_STEP_DEG)
-            d_az = _nearest(az, GRID_AZ_STEP_DEG) * np.cos(np.radians(alt))
-            d_az = np.where(np.abs(alt) > 80.0, np.where(_nearest(az, 90.0) < GRID_AZ_STEP_DEG / 2,
-                                                         d_az, 90.0), d_az)
-            _composite_line(ctx, np.minimum(d_alt, d_az), "grid_altaz", op["grid_altaz"])
-        if op["grid_equatorial"] > 0 or op["equator"] > 0 or op["ecliptic"] > 0:
-            r = _eq_rotation(ctx).astype(np.float32)   # equatorial -> ENU
-            if op["grid_equatorial"] > 0 or op["equator"] > 0:
-                ez = _dot(g, r[:, 2])
-            if op["grid_equatorial"] > 0:
-                dec = np.degrees(np.arcsin(np.clip(ez, -1.0, 1.0)))
-                ra = np.degrees(np.arctan2(_dot(g, r[:, 1]), _dot(g, r[:, 0])))
-                d_dec = _nearest(dec, GRID_ALT_STEP_DEG)
-                d_ra = _nearest(ra, 15.0 * GRID_RA_STEP_H) * np.cos(np.radians(dec))
-                d_ra = np.where(np.abs(dec) > 80.0, 90.0, d_ra)
-                _composite_line(ctx, np.minimum(d_dec, d_ra), "grid_equatorial", op["grid_equatorial"])
-            if op["equator"] > 0:
-                _composite_great_circle(ctx, np.abs(ez), "equator", op["equator"])
-            if op["ecliptic"] > 0:
-                eps = math.radians(OBLIQUITY_DEG)
-                pole = r @ np.array([0.0, -math.sin(eps), math.cos(eps)], dtype=np.float32)
-                _composite_great_circle(ctx, np.abs(_dot(g, pole)), "ecliptic", op["ecliptic"])
-        if op["horizon_line"] > 0:
-            _composite_great_circle(ctx, np.abs(z), "horizon_line", op["horizon_line"])
-        if op["meridian"] > 0:
-            _composite_great_circle(ctx, np.abs(g[..., 0]), "meridian", op["meridian"])
+        alt = np.degrees(np.arcsin(np.clip(z, -1.0, 1.0)))
+        az = np.degrees(np.arctan2(g[..., 0], g[..., 1]))
+        d_alt = _nearest(alt, GRID_ALT_STEP_DEG)
+        d_az = _nearest(az, GRID_AZ_STEP_DEG) * np.cos(np.radians(alt))
+        d_az = np.where(np.abs(alt) > 80.0, np.where(_nearest(az, 90.0) < GRID_AZ_STEP_DEG / 2,
+                                                     d_az, 90.0), d_az)
+        _composite_line(ctx, np.minimum(d_alt, d_az), "grid_altaz", op["grid_altaz"])
+    if op["grid_equatorial"] > 0 or op["equator"] > 0 or op["ecliptic"] > 0:
+        r = _eq_rotation(ctx).astype(np.float32)   # equatorial -> ENU
+        if op["grid_equatorial"] > 0:
+            g = ctx.grid
+            dec = np.degrees(np.arcsin(np.clip(_dot(g, r[:, 2]), -1.0, 1.0)))
+            ra = np.degrees(np.arctan2(_dot(g, r[:, 1]), _dot(g, r[:, 0])))
+            d_dec = _nearest(dec, GRID_ALT_STEP_DEG)
+            d_ra = _nearest(ra, 15.0 * GRID_RA_STEP_H) * np.cos(np.radians(dec))
+            d_ra = np.where(np.abs(dec) > 80.0, 90.0, d_ra)
+            _composite_line(ctx, np.minimum(d_dec, d_ra), "grid_equatorial", op["grid_equatorial"])
+        if op["equator"] > 0:
+            _composite_great_circle(ctx, r[:, 2], "equator", op["equator"])
+        if op["ecliptic"] > 0:
+            eps = math.radians(OBLIQUITY_DEG)
+            pole = r @ np.array([0.0, -math.sin(eps), math.cos(eps)], dtype=np.float32)
+            _composite_great_circle(ctx, pole, "ecliptic", op["ecliptic"])
+    if op["horizon_line"] > 0:
+        _composite_great_circle(ctx, (0.0, 0.0, 1.0), "horizon_line", op["horizon_line"])
+    if op["meridian"] > 0:
+        _composite_great_circle(ctx, (1.0, 0.0, 0.0), "meridian", op["meridian"])
     if op["cardinals"] > 0:
         _cardinals(ctx, op["cardinals"])
     if op["labels"] > 0:

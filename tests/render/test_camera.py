@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 from domegen.errors import DomegenError
-from domegen.render.camera import direction_grid, pixel_solid_angle, project, unproject
+from domegen.render.camera import camera_basis, direction_grid, near_great_circle, pixel_solid_angle, project, unproject
 from domegen.render.spec import CameraSpec
 from domegen.sky.bodies import body_positions
 from domegen.sky.frames import altaz_to_enu
@@ -64,6 +64,36 @@ def test_direction_grid_matches_unproject_and_is_cached():
     jj, ii = np.meshgrid(np.arange(256) + 0.5, np.arange(256) + 0.5)
     ref = np.moveaxis(unproject(cam, jj, ii), 0, -1)
     assert np.max(np.abs(g - ref)) < 2e-6
+
+
+@pytest.mark.parametrize("camera", [CameraSpec(size_px=1024), CameraSpec(size_px=1024, front_az_deg=70.0, tilt_deg=25.0),
+                                    CameraSpec(size_px=777, field_deg=230.0, front_az_deg=200.0),
+                                    CameraSpec(size_px=1024, field_deg=30.0, view_az_deg=120.0, view_alt_deg=20.0)],
+                         ids=lambda c: f"n{c.size_px}f{c.field_deg:g}")
+@pytest.mark.parametrize("pole", [(0.0, 0.0, 1.0), (1.0, 0.0, 0.0), (0.3, -0.5, 0.81), (0.0, 0.98, 0.2), "across"])
+def test_pixels_near_a_great_circle_are_exactly_the_brute_force_set(camera, pole):
+    # The screened search must find every pixel a full-frame search finds: |d . p| < sin(reach) over
+    # all pixel centres in the circle and its rim (geometry of the sphere, common practice).
+    reach = 3.0 * math.radians(camera.field_deg) / camera.size_px
+    if pole == "across":   # a circle through the middle of the picture, tilted 30 deg from its vertical
+        m = camera_basis(camera)
+        pole = math.cos(math.radians(30)) * m[0] + math.sin(math.radians(30)) * m[1]
+    idx, s = near_great_circle(camera, pole, reach)
+    n = camera.size_px
+    jj, ii = np.meshgrid(np.arange(n) + 0.5, np.arange(n) + 0.5)
+    d = unproject(camera, jj, ii)
+    p = np.asarray(pole) / np.linalg.norm(pole)
+    sin_d = np.abs(np.tensordot(p, d, axes=1)).reshape(-1)
+    rim = (np.hypot(jj - n / 2, ii - n / 2) <= n / 2 * (1 + 2.0 / n)).reshape(-1)
+    want = np.flatnonzero(rim & (sin_d < math.sin(reach)))
+    got = np.sort(idx)
+    assert got.size == np.unique(got).size
+    # float32 directions may flip pixels lying within 1e-6 of the edge of the band
+    edge = np.abs(sin_d - math.sin(reach)) < 1e-6
+    assert set(got) ^ set(want) <= set(np.flatnonzero(edge))
+    if isinstance(pole, np.ndarray):
+        assert want.size > 2 * n
+    assert np.all(np.abs(s - sin_d[idx]) < 2e-6)
 
 
 def test_pixel_solid_angle_sums_to_the_hemisphere():
