@@ -94,23 +94,34 @@ def _full_lut8() -> np.ndarray:
     return full
 
 
-def tone_map_plane(plane: np.ndarray, ev: float, bit_depth: int = 8) -> np.ndarray:
-    """One (H, W) linear plane (cd/m^2, contiguous float32) -> (H, W) uint8/uint16 sRGB codes."""
+def tone_map_plane(plane: np.ndarray, ev: float, bit_depth: int = 8, out: np.ndarray | None = None) -> np.ndarray:
+    """One (H, W) linear plane (cd/m^2, contiguous float32) -> (H, W) uint8/uint16 sRGB codes.
+
+    ``out``: an (H, W) array of the code type to fill (it may be strided, e.g.
+    one channel of interleaved PNG rows), saving a copy.
+    """
     if bit_depth not in _SHIFT:
         raise ValueError("bit_depth must be 8 or 16")
     buf = scratch("tonemap", plane.shape, np.float32)
     np.multiply(plane, np.float32(exposure_scale(ev)), out=buf)
-    if bit_depth == 8:
-        bits = buf.view(np.uint32)
-        np.right_shift(bits, np.uint32(15), out=bits)
-        return _full_lut8()[bits]
-    table, base = _lut(bit_depth)
-    np.maximum(buf, np.float32(_LO), out=buf)
-    np.minimum(buf, np.float32(_HI), out=buf)
     bits = buf.view(np.uint32)
-    np.right_shift(bits, np.uint32(_SHIFT[bit_depth]), out=bits)
-    np.subtract(bits, np.uint32(base), out=bits)
-    return table[bits]
+    if bit_depth == 8:
+        np.right_shift(bits, np.uint32(15), out=bits)
+        table = _full_lut8()   # every 17-bit index has an entry: "wrap" never wraps, and skips the bounds pass
+    else:
+        table, base = _lut(bit_depth)
+        np.maximum(buf, np.float32(_LO), out=buf)
+        np.minimum(buf, np.float32(_HI), out=buf)
+        np.right_shift(bits, np.uint32(_SHIFT[bit_depth]), out=bits)
+        np.subtract(bits, np.uint32(base), out=bits)
+    if out is None:
+        return table[bits]
+    if out.flags.c_contiguous:
+        return np.take(table, bits, out=out, mode="wrap")
+    # a gather into a strided target is slower than a contiguous gather and a copy
+    codes = np.take(table, bits, out=scratch("tonemap-codes", plane.shape, table.dtype), mode="wrap")
+    out[...] = codes
+    return out
 
 
 def tone_map(rgb_planar: np.ndarray, ev: float, bit_depth: int = 8) -> np.ndarray:

@@ -125,15 +125,15 @@ def _apparent_and_magnitude(site: Site, t, names) -> tuple[np.ndarray, np.ndarra
 
 def _interpolated(site: Site, t, names) -> tuple[np.ndarray, np.ndarray]:
     """Apparent vectors and magnitudes at ``t`` via spline knots, or directly if that is no cheaper."""
-    from scipy.interpolate import CubicSpline
-
-    from domegen.sky.ephemeris import timescale
-
     tt = np.atleast_1d(t.tt)
     lo, hi = float(tt.min()), float(tt.max())
     k = max(4, int(np.ceil((hi - lo) / KNOT_STEP_DAYS)) + 3)
     if tt.size <= 16 or 2 * k >= tt.size:
         return _apparent_and_magnitude(site, t, names)
+    from scipy.interpolate import CubicSpline  # here: a one-frame worker never pays its import
+
+    from domegen.sky.ephemeris import timescale
+
     knots = np.linspace(lo - KNOT_STEP_DAYS, hi + KNOT_STEP_DAYS, k)
     tk = timescale().tt_jd(knots)
     if knots.size > 64:
