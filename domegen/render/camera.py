@@ -226,6 +226,33 @@ def circle_alpha(size_px: int) -> np.ndarray:
     return a
 
 
+@functools.lru_cache(maxsize=2)
+def rim_spans(size_px: int, band_rows: int = 64) -> tuple:
+    """Where the image-circle coverage is not 1: per band of rows (r0, r1, a, b), the band's pixels
+    outside columns a..b (the part every row of the band has fully inside the circle)."""
+    alpha = circle_alpha(size_px)
+    spans = []
+    for r0 in range(0, size_px, band_rows):
+        r1 = min(size_px, r0 + band_rows)
+        full = np.all(alpha[r0:r1] == 1.0, axis=0)
+        cols = np.flatnonzero(full)
+        a, b = (int(cols[0]), int(cols[-1]) + 1) if cols.size else (size_px // 2, size_px // 2)
+        if cols.size and not full[a:b].all():   # a circle's rows are convex: never taken
+            a = b = size_px // 2
+        spans.append((r0, r1, a, b))
+    return tuple(spans)
+
+
+def premultiply_circle(rgb: np.ndarray) -> None:
+    """rgb (3, n, n) *= circle_alpha(n), in place, touching only the pixels whose coverage is not 1."""
+    n = rgb.shape[-1]
+    alpha = circle_alpha(n)
+    for r0, r1, a, b in rim_spans(n):
+        for lo, hi in ((0, a), (b, n)):
+            if hi > lo:
+                rgb[:, r0:r1, lo:hi] *= alpha[None, r0:r1, lo:hi]
+
+
 def pixel_solid_angle(camera: CameraSpec, theta_rad) -> np.ndarray:
     """Solid angle of one pixel at angle theta from the axis, sr: dtheta^2 sin(theta)/theta."""
     d = rad_per_px(camera)

@@ -323,6 +323,8 @@ def render_frame(spec: FrameSpec, *, bodies=None, stars=None, sky_model=None, ou
     alpha = cam.circle_alpha(n)
     if overlay_alpha:
         alpha = ctx.overlay_alpha * alpha
-    for k in range(3):
-        ctx.rgb[k] *= alpha
+        for k in range(3):
+            ctx.rgb[k] *= alpha
+    else:
+        cam.premultiply_circle(ctx.rgb)
     return RenderedFrame(rgb=ctx.rgb, alpha=alpha, info=ctx.info)

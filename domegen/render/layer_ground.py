@@ -83,7 +83,7 @@ def load_panorama(path: str) -> tuple[np.ndarray, float]:
 
 @functools.lru_cache(maxsize=4)
 def ground_geometry(camera, limit_deg: float):
-    """Flat indices, altitudes and azimuths (deg) of the pixels inside the image circle below ``limit_deg``.
+    """Flat indices (K,) and ENU directions (3, K) float32 of the pixels inside the image circle below ``limit_deg``.
 
     Blocks of 16 x 16 pixels are screened first from their centre's altitude
     (a pixel is less than one pixel-angle from its neighbour), so only blocks
@@ -99,11 +99,17 @@ def ground_geometry(camera, limit_deg: float):
     d = unproject(camera, cols + 0.5, rows + 0.5, dtype=np.float32)   # 1e-7 rad: far below a pixel
     low = d[2] < zmax
     sel = rows[low] * n + cols[low]
-    alt = np.degrees(np.arcsin(np.clip(d[2, low], -1.0, 1.0))).astype(np.float64)
-    az = np.degrees(np.arctan2(d[0, low], d[1, low])).astype(np.float64) % 360.0
-    for arr in (sel, alt, az):
+    d = np.ascontiguousarray(d[:, low])
+    for arr in (sel, d):
         arr.flags.writeable = False
-    return sel, alt, az
+    return sel, d
+
+
+def _alt_az_deg(d: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Altitude and azimuth (deg, float64) of ENU directions (3, K) float32."""
+    alt = np.degrees(np.arcsin(np.clip(d[2], -1.0, 1.0))).astype(np.float64)
+    az = np.degrees(np.arctan2(d[0], d[1])).astype(np.float64) % 360.0
+    return alt, az
 
 
 def horizontal_illuminance(ctx) -> float:
@@ -141,18 +147,24 @@ def ground_layout(camera, seed: int, panorama: str | None, mtime: float | None):
         limit_deg = top + math.degrees(math.radians(camera.field_deg) / camera.size_px)
     else:
         pano, limit_deg = None, SKYLINE_MAX_DEG
-    sel, alt, az = ground_geometry(camera, round(min(limit_deg, 90.0), 3))
+    sel, d = ground_geometry(camera, round(min(limit_deg, 90.0), 3))
     deg_px = camera.field_deg / camera.size_px
     if pano is None:
+        # well below the horizon (half a pixel and a margin) the ground is whole and flat: no skyline lookup
+        part = d[2] >= np.float32(math.sin(math.radians(-0.51 * deg_px)))
+        alt, az = _alt_az_deg(d[:, part])
         table = skyline_table(seed)
         t = az / 360.0 * _TABLE
         i0 = np.floor(t).astype(np.int64) % _TABLE
         w = t - np.floor(t)
         sky_h = table[i0] * (1 - w) + table[(i0 + 1) % _TABLE] * w
-        cov = np.clip((sky_h - alt) / deg_px + 0.5, 0.0, 1.0)
-        flat = np.clip(-alt / deg_px + 0.5, 0.0, 1.0)
+        cov = np.ones(sel.size)
+        cov[part] = np.clip((sky_h - alt) / deg_px + 0.5, 0.0, 1.0)
+        flat = np.ones(sel.size)
+        flat[part] = np.clip(-alt / deg_px + 0.5, 0.0, 1.0)
         albedo = SKYLINE_ALBEDO[None] + (GROUND_ALBEDO - SKYLINE_ALBEDO)[None] * flat[:, None]
     else:
+        alt, az = _alt_az_deg(d)
         rgba = _sample(pano, az, alt)
         cov, albedo = rgba[:, 3], rgba[:, :3]
     keep = cov > 0

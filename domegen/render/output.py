@@ -44,7 +44,7 @@ def _chunk(kind: bytes, data: bytes) -> bytes:
 
 
 #: Rows per band of the streaming PNG writer (bounds the writer's memory to a few bands).
-PNG_BAND_ROWS = 256
+PNG_BAND_ROWS = 64
 
 
 def _png_stream(h: int, w: int, c: int, depth: int, fill, level: int) -> bytes:

@@ -130,10 +130,13 @@ def tone_map(rgb_planar: np.ndarray, ev: float, bit_depth: int = 8) -> np.ndarra
 
 
 def alpha_codes(alpha: np.ndarray, bit_depth: int = 8, out: np.ndarray | None = None) -> np.ndarray:
-    """Coverage 0..1 -> integer alpha codes."""
+    """Coverage 0..1 (H, W) -> integer alpha codes, in bands of rows (no full-size float temporaries)."""
     top = (1 << bit_depth) - 1
-    a = np.clip(alpha, 0.0, 1.0) * np.float32(top) + np.float32(0.5)
     if out is None:
-        return a.astype(np.uint8 if bit_depth == 8 else np.uint16)
-    out[...] = a
+        out = np.empty(alpha.shape, dtype=np.uint8 if bit_depth == 8 else np.uint16)
+    for r0 in range(0, alpha.shape[0], 256):
+        band = np.clip(alpha[r0:r0 + 256], 0.0, 1.0).astype(np.float32, copy=False)
+        band *= np.float32(top)
+        band += np.float32(0.5)
+        out[r0:r0 + 256] = band
     return out
