@@ -2,13 +2,20 @@
 
 from __future__ import annotations
 
-import argparse
-import importlib
-import pkgutil
-import sys
+import os
 
-import domegen
-from domegen.errors import DomegenError
+# Before numpy loads: domegen's array work is element-wise, so extra BLAS/OpenMP threads only spin
+# (a 4K frame in one process: the same wall time, 0.29 -> 0.18 CPU s). Set these to override.
+for _var in ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS"):
+    os.environ.setdefault(_var, "1")
+
+import argparse  # noqa: E402
+import importlib  # noqa: E402
+import pkgutil  # noqa: E402
+import sys  # noqa: E402
+
+import domegen  # noqa: E402
+from domegen.errors import DomegenError  # noqa: E402
 
 _SKIP = {"main", "common"}
 
