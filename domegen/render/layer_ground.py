@@ -14,6 +14,7 @@ from __future__ import annotations
 import functools
 import math
 import os
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -82,27 +83,50 @@ def load_panorama(path: str) -> tuple[np.ndarray, float]:
 
 
 @functools.lru_cache(maxsize=4)
-def ground_geometry(camera, limit_deg: float):
-    """Flat indices (K,) and ENU directions (3, K) float32 of the pixels inside the image circle below ``limit_deg``.
+def ground_geometry(camera, limit_deg: float, solid_below_deg: float | None = None):
+    """The pixels inside the image circle below ``limit_deg``, in two parts.
 
     Blocks of 16 x 16 pixels are screened first from their centre's altitude
-    (a pixel is less than one pixel-angle from its neighbour), so only blocks
-    that can hold ground are evaluated per pixel.
+    (a pixel is less than one pixel-angle from its neighbour).  Blocks that lie
+    wholly inside the circle and wholly below ``solid_below_deg`` (when given)
+    are returned as runs, (R, 4) int64 rows (r0, r1, c0, c1) of pixel slices;
+    every other block that can hold ground is evaluated per pixel: flat
+    indices (K,) and ENU directions (3, K) float32 of its pixels below the limit.
     """
     from domegen.render.camera import SCREEN_BLOCK_PX, block_centres, block_pixels, screen_reach_rad, unproject
 
-    n = camera.size_px
+    n, bs = camera.size_px, SCREEN_BLOCK_PX
     zmax = math.sin(math.radians(limit_deg))
     dc, rb = block_centres(camera)
-    cand = (dc[2] < zmax + screen_reach_rad(camera)) & (rb <= 1.0 + 1.5 * SCREEN_BLOCK_PX / n)
+    reach = screen_reach_rad(camera)
+    cand = (dc[2] < zmax + reach) & (rb <= 1.0 + 1.5 * bs / n)
+    runs = np.zeros((0, 4), dtype=np.int64)
+    if solid_below_deg is not None:
+        # z is the sine of the altitude: a pixel within `reach` of the centre is at most `reach` higher
+        alt_c = np.arcsin(np.clip(dc[2], -1.0, 1.0))
+        corner = rb + bs / math.sqrt(2.0) / (n / 2.0)       # farthest pixel of the block, circle radii
+        solid = cand & (alt_c + reach < math.radians(solid_below_deg)) & (corner < 1.0)
+        cand &= ~solid
+        runs = _block_runs(solid, bs, n)
     rows, cols = block_pixels(camera, cand)
     d = unproject(camera, cols + 0.5, rows + 0.5, dtype=np.float32)   # 1e-7 rad: far below a pixel
     low = d[2] < zmax
     sel = rows[low] * n + cols[low]
     d = np.ascontiguousarray(d[:, low])
-    for arr in (sel, d):
+    for arr in (sel, d, runs):
         arr.flags.writeable = False
-    return sel, d
+    return sel, d, runs
+
+
+def _block_runs(blocks: np.ndarray, bs: int, n: int) -> np.ndarray:
+    """Horizontal runs of selected blocks ((nb, nb) bool) as pixel slices (R, 4): r0, r1, c0, c1."""
+    padded = np.zeros((blocks.shape[0], blocks.shape[1] + 2), dtype=np.int8)
+    padded[:, 1:-1] = blocks
+    step = np.diff(padded, axis=1)
+    by, c_start = np.nonzero(step == 1)
+    _, c_end = np.nonzero(step == -1)       # same row order, one end per start
+    r0 = by * bs
+    return np.stack([r0, np.minimum(r0 + bs, n), c_start * bs, np.minimum(c_end * bs, n)], axis=1).astype(np.int64)
 
 
 def _alt_az_deg(d: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -135,30 +159,43 @@ def horizontal_illuminance(ctx) -> float:
     return e
 
 
-@functools.lru_cache(maxsize=4)
-def ground_layout(camera, seed: int, panorama: str | None, mtime: float | None):
-    """Per-camera ground pixels: flat indices (K,), coverage (K,) float32 and albedo (K, 3) float32.
+@dataclass(frozen=True)
+class GroundLayout:
+    """Per-camera ground: ``runs`` (R, 4) pixel slices (r0, r1, c0, c1) of whole, flat ground with
+    albedo ``solid_albedo`` (3,); and edge pixels: flat indices ``idx`` (K,), coverage ``cov`` (K,)
+    and albedo (K, 3), float32."""
 
-    A pure function of the camera and the skyline seed (or the panorama file), cached:
-    a sequence with a fixed camera pays it once.
+    idx: np.ndarray
+    cov: np.ndarray
+    albedo: np.ndarray
+    runs: np.ndarray
+    solid_albedo: np.ndarray
+
+
+@functools.lru_cache(maxsize=4)
+def ground_layout(camera, seed: int, panorama: str | None, mtime: float | None) -> GroundLayout:
+    """The ground of one camera: a pure function of the camera and the skyline seed (or the panorama
+    file), cached, so a sequence with a fixed camera pays it once; a moving camera pays it per frame,
+    so whole blocks of flat ground are kept as slices and only the skyline's edge is evaluated per pixel.
     """
+    deg_px = camera.field_deg / camera.size_px
     if panorama:
         pano, top = load_panorama(panorama)
-        limit_deg = top + math.degrees(math.radians(camera.field_deg) / camera.size_px)
+        limit_deg, solid_below = top + deg_px, None
     else:
-        pano, limit_deg = None, SKYLINE_MAX_DEG
-    sel, d = ground_geometry(camera, round(min(limit_deg, 90.0), 3))
-    deg_px = camera.field_deg / camera.size_px
+        # below half a pixel (and a margin) under the horizon the procedural ground is whole and flat
+        pano, limit_deg, solid_below = None, SKYLINE_MAX_DEG, -0.51 * deg_px
+    sel, d, runs = ground_geometry(camera, round(min(limit_deg, 90.0), 3), solid_below)
+    solid_albedo = (SKYLINE_ALBEDO + (GROUND_ALBEDO - SKYLINE_ALBEDO) * 1.0).astype(np.float32)
     if pano is None:
-        # well below the horizon (half a pixel and a margin) the ground is whole and flat: no skyline lookup
-        part = d[2] >= np.float32(math.sin(math.radians(-0.51 * deg_px)))
+        part = d[2] >= np.float32(math.sin(math.radians(solid_below)))
         alt, az = _alt_az_deg(d[:, part])
         table = skyline_table(seed)
         t = az / 360.0 * _TABLE
         i0 = np.floor(t).astype(np.int64) % _TABLE
         w = t - np.floor(t)
         sky_h = table[i0] * (1 - w) + table[(i0 + 1) % _TABLE] * w
-        cov = np.ones(sel.size)
+        cov = np.ones(sel.size, dtype=np.float32)
         cov[part] = np.clip((sky_h - alt) / deg_px + 0.5, 0.0, 1.0)
         flat = np.ones(sel.size)
         flat[part] = np.clip(-alt / deg_px + 0.5, 0.0, 1.0)
@@ -168,8 +205,9 @@ def ground_layout(camera, seed: int, panorama: str | None, mtime: float | None):
         rgba = _sample(pano, az, alt)
         cov, albedo = rgba[:, 3], rgba[:, :3]
     keep = cov > 0
-    out = (sel[keep], cov[keep].astype(np.float32), np.ascontiguousarray(albedo[keep], dtype=np.float32))
-    for arr in out:
+    out = GroundLayout(sel[keep], cov[keep].astype(np.float32), np.ascontiguousarray(albedo[keep], dtype=np.float32),
+                       runs, solid_albedo)
+    for arr in (out.idx, out.cov, out.albedo, out.solid_albedo):
         arr.flags.writeable = False
     return out
 
@@ -183,18 +221,27 @@ def draw_ground(ctx, opacity: float) -> None:
     if pano:
         load_panorama(pano)   # errors first, with the user's path
         mtime = os.path.getmtime(pano)
-    idx, cov, albedo = ground_layout(ctx.camera, ctx.layers.seed, pano, mtime)
-    if idx.size == 0:
+    g = ground_layout(ctx.camera, ctx.layers.seed, pano, mtime)
+    if g.idx.size == 0 and len(g.runs) == 0:
         return
     e = horizontal_illuminance(ctx)
-    c = cov * np.float32(opacity)
+    lum = np.float32(e / math.pi)
+    c = g.cov * np.float32(opacity)
     keep = 1.0 - c
     for k in range(3):
         plane = ctx.rgb[k].reshape(-1)
-        v = plane[idx]
+        v = plane[g.idx]
         v *= keep
-        v += albedo[:, k] * np.float32(e / math.pi) * c
-        plane[idx] = v
+        v += g.albedo[:, k] * lum * c
+        plane[g.idx] = v
+    solid = g.solid_albedo * lum * np.float32(opacity)
+    for r0, r1, c0, c1 in g.runs.tolist():
+        block = ctx.rgb[:, r0:r1, c0:c1]
+        if opacity >= 1.0:
+            block[...] = solid[:, None, None]
+        else:
+            block *= np.float32(1.0) - np.float32(opacity)
+            block += solid[:, None, None]
     ctx.info["ground_lux"] = round(e, 6)
 
 
