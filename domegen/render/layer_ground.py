@@ -83,8 +83,9 @@ def load_panorama(path: str) -> tuple[np.ndarray, float]:
 
 
 @functools.lru_cache(maxsize=4)
-def ground_geometry(camera, limit_deg: float, solid_below_deg: float | None = None):
-    """The pixels inside the image circle below ``limit_deg``, in two parts.
+def ground_geometry(camera, limit_deg: float, solid_below_deg: float | None = None, seed: int | None = None):
+    """The pixels inside the image circle below ``limit_deg`` (or, given a skyline ``seed``, below
+    that skyline and half a pixel), in two parts.
 
     Blocks of 16 x 16 pixels are screened first from their centre's altitude
     (a pixel is less than one pixel-angle from its neighbour).  Blocks that lie
@@ -100,10 +101,12 @@ def ground_geometry(camera, limit_deg: float, solid_below_deg: float | None = No
     dc, rb = block_centres(camera)
     reach = screen_reach_rad(camera)
     cand = (dc[2] < zmax + reach) & (rb <= 1.0 + 1.5 * bs / n)
+    # z is the sine of the altitude: a pixel within `reach` of the centre is at most `reach` higher
+    alt_c = np.arcsin(np.clip(dc[2], -1.0, 1.0))
+    if seed is not None:
+        cand &= alt_c - reach < np.radians(_skyline_near(dc, alt_c, reach, seed) + 0.5 * camera.field_deg / n)
     runs = np.zeros((0, 4), dtype=np.int64)
     if solid_below_deg is not None:
-        # z is the sine of the altitude: a pixel within `reach` of the centre is at most `reach` higher
-        alt_c = np.arcsin(np.clip(dc[2], -1.0, 1.0))
         corner = rb + bs / math.sqrt(2.0) / (n / 2.0)       # farthest pixel of the block, circle radii
         solid = cand & (alt_c + reach < math.radians(solid_below_deg)) & (corner < 1.0)
         cand &= ~solid
@@ -116,6 +119,24 @@ def ground_geometry(camera, limit_deg: float, solid_below_deg: float | None = No
     for arr in (sel, d, runs):
         arr.flags.writeable = False
     return sel, d, runs
+
+
+def _skyline_near(dc: np.ndarray, alt_c: np.ndarray, reach: float, seed: int) -> np.ndarray:
+    """Highest skyline altitude (deg) within the azimuths a block can span, per block (nb, nb).
+
+    A block's pixels lie within ``reach`` of its centre, so within reach / cos(alt) in azimuth;
+    where that is wide (high blocks, which the altitude screen drops anyway) the skyline's maximum.
+    """
+    table = skyline_table(seed)
+    bin_rad = 2.0 * math.pi / _TABLE
+    half_az = reach / np.maximum(np.cos(np.minimum(np.abs(alt_c) + reach, math.pi / 2)), 1e-9)
+    w = int(math.ceil(reach / math.cos(math.radians(20.0)) / bin_rad)) + 1
+    if w >= _TABLE // 4:
+        return np.full(alt_c.shape, float(table.max()))
+    near = np.max(np.stack([np.roll(table, k) for k in range(-w, w + 1)]), axis=0)   # sliding max, wraps
+    az = np.arctan2(dc[0], dc[1]) % (2.0 * math.pi)
+    i = np.clip(np.round(az / bin_rad).astype(np.int64), 0, _TABLE) % _TABLE
+    return np.where(half_az <= (w - 1) * bin_rad, near[i], float(table.max()))
 
 
 def _block_runs(blocks: np.ndarray, bs: int, n: int) -> np.ndarray:
@@ -185,7 +206,7 @@ def ground_layout(camera, seed: int, panorama: str | None, mtime: float | None) 
     else:
         # below half a pixel (and a margin) under the horizon the procedural ground is whole and flat
         pano, limit_deg, solid_below = None, SKYLINE_MAX_DEG, -0.51 * deg_px
-    sel, d, runs = ground_geometry(camera, round(min(limit_deg, 90.0), 3), solid_below)
+    sel, d, runs = ground_geometry(camera, round(min(limit_deg, 90.0), 3), solid_below, None if pano else seed)
     solid_albedo = (SKYLINE_ALBEDO + (GROUND_ALBEDO - SKYLINE_ALBEDO) * 1.0).astype(np.float32)
     if pano is None:
         part = d[2] >= np.float32(math.sin(math.radians(solid_below)))
