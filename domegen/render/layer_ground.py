@@ -206,7 +206,7 @@ def ground_layout(camera, seed: int, panorama: str | None, mtime: float | None) 
     else:
         # below half a pixel (and a margin) under the horizon the procedural ground is whole and flat
         pano, limit_deg, solid_below = None, SKYLINE_MAX_DEG, -0.51 * deg_px
-    sel, d, runs = ground_geometry(camera, round(min(limit_deg, 90.0), 3), solid_below, None if pano else seed)
+    sel, d, runs = ground_geometry(camera, round(min(limit_deg, 90.0), 3), solid_below, None if panorama else seed)
     solid_albedo = (SKYLINE_ALBEDO + (GROUND_ALBEDO - SKYLINE_ALBEDO) * 1.0).astype(np.float32)
     if pano is None:
         part = d[2] >= np.float32(math.sin(math.radians(solid_below)))
