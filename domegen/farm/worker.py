@@ -38,26 +38,39 @@ class FrameResult:
     params: str
     sha256: str
     bytes: int
-    render_s: float         # time spent producing the image bytes
+    render_s: float         # time spent producing the image bytes (ephemeris included)
     total_s: float          # time for the whole job inside the worker
     cpu_s: float = 0.0      # CPU time of the worker's process for the whole job
+    ephemeris_s: float = 0.0  # of render_s: bodies and stars for the frame's instant
 
 
-def render_and_encode(spec, fmt: str, bit_depth: int) -> bytes:
+def render_and_encode(spec, fmt: str, bit_depth: int) -> tuple[bytes, dict]:
     """The standard producer: render the frame and encode it.
 
-    The frame's float buffer is kept for the next frame of this process (or
-    thread): a fresh 200 MB array at 4K costs its page faults every frame.
+    Bodies come from the fixed knot grid that consecutive frames of this
+    process share (the light-time ephemeris once per 10 minutes of sky, not
+    once per frame), and the frame's float buffer is kept for the next frame
+    (a fresh 200 MB array at 4K costs its page faults every frame).  Returns
+    the bytes and timings (a producer may also return bytes alone).
     """
     import numpy as np
 
     from domegen.render._buffers import scratch
     from domegen.render.frame import render_frame
     from domegen.render.output import encode_frame
+    from domegen.sky.bodies import body_positions
+    from domegen.sky.stars import star_field
+    from domegen.sky.times import unix_seconds
 
+    t0 = time.perf_counter()
+    bodies = body_positions(spec.site, np.array([unix_seconds(spec.utc)]), grid=True)
+    layers = spec.layers
+    stars = star_field(spec.site, spec.utc, mag_limit=layers.star_mag_limit) if layers.stars > 0 else None
+    ephemeris_s = time.perf_counter() - t0
     n = spec.camera.size_px
     out = scratch("frame-rgb", (3, n, n), np.float32)
-    return encode_frame(render_frame(spec, out=out), fmt, bit_depth, spec.layers.exposure_ev)
+    frame = render_frame(spec, bodies=bodies, stars=stars, out=out)
+    return encode_frame(frame, fmt, bit_depth, layers.exposure_ev), {"ephemeris_s": ephemeris_s}
 
 
 def _producer(name: str):
@@ -71,12 +84,13 @@ def run_job(job: FrameJob) -> FrameResult:
     c0 = time.process_time()
     data = _producer(job.producer)(job.spec, job.fmt, job.bit_depth)
     t1 = time.perf_counter()
+    data, timings = data if isinstance(data, tuple) else (data, {})
     path = Path(job.path)
     path.parent.mkdir(parents=True, exist_ok=True)
     atomic_write_bytes(path, data)
     digest = hashlib.sha256(data).hexdigest()
     return FrameResult(job.frame, job.file, job.params, digest, len(data), t1 - t0,
-                       time.perf_counter() - t0, time.process_time() - c0)
+                       time.perf_counter() - t0, time.process_time() - c0, timings.get("ephemeris_s", 0.0))
 
 
 def run_chunk(jobs: list) -> list:

@@ -97,6 +97,30 @@ def test_interpolated_positions_match_direct_evaluation():
     assert sep.max() < 0.001 * ARCSEC
 
 
+@pytest.mark.parametrize("when", [datetime(2024, 4, 8, 12, tzinfo=timezone.utc),
+                                  datetime(2016, 12, 31, 23, 50, tzinfo=timezone.utc),   # across a leap second
+                                  datetime(1905, 8, 30, 9, tzinfo=timezone.utc)])
+def test_grid_positions_match_direct_evaluation_and_depend_on_the_instant_alone(when):
+    # The fixed-grid path against skyfield's direct apparent positions, instant by instant
+    # (tolerance 0.001 arcsec, as the spline path), on two sites.
+    from domegen.sky import bodies as b
+
+    for site in (SITES[0], SITES[3]):
+        utc = unix_seconds(when) + np.random.default_rng(2).uniform(0, 2 * 3600.0, 15)
+        for u in utc:
+            grid = body_positions(site, np.array([u]), grid=True)
+            direct = body_positions(site, np.array([u]))
+            sep = _separation_deg(grid.alt_deg, grid.az_deg, direct.alt_deg, direct.az_deg)
+            assert sep.max() < 0.001 * ARCSEC
+            assert np.allclose(grid.magnitude, direct.magnitude, atol=1e-6, equal_nan=True)
+    # the same bits whatever was computed before (a resumed or re-ordered render relies on it)
+    u = float(utc[3])
+    first = body_positions(SITES[0], np.array([u]), grid=True)
+    b._grid_knot.cache_clear()
+    again = body_positions(SITES[0], np.array([u]), grid=True)
+    assert np.array_equal(first.enu, again.enu) and np.array_equal(first.magnitude, again.magnitude, equal_nan=True)
+
+
 def test_moon_mean_angular_diameter_about_31_arcmin():
     # Common practice: the Moon's mean apparent diameter is about 31 arcmin (29.3'-34.1' range).
     site = SITES[3]
