@@ -228,27 +228,34 @@ def circle_alpha(size_px: int) -> np.ndarray:
 
 @functools.lru_cache(maxsize=2)
 def rim_spans(size_px: int, band_rows: int = 64) -> tuple:
-    """Where the image-circle coverage is not 1: per band of rows (r0, r1, a, b), the band's pixels
-    outside columns a..b (the part every row of the band has fully inside the circle)."""
+    """Where the image-circle coverage is not 1, per band of rows: (r0, r1, z0, a, b, z1) with
+    every row of the band fully inside the circle over columns a..b and fully outside it
+    (coverage 0) before z0 and from z1 on."""
     alpha = circle_alpha(size_px)
     spans = []
     for r0 in range(0, size_px, band_rows):
         r1 = min(size_px, r0 + band_rows)
-        full = np.all(alpha[r0:r1] == 1.0, axis=0)
-        cols = np.flatnonzero(full)
-        a, b = (int(cols[0]), int(cols[-1]) + 1) if cols.size else (size_px // 2, size_px // 2)
-        if cols.size and not full[a:b].all():   # a circle's rows are convex: never taken
-            a = b = size_px // 2
-        spans.append((r0, r1, a, b))
+        band = alpha[r0:r1]
+        full = np.flatnonzero(np.all(band == 1.0, axis=0))
+        some = np.flatnonzero(np.any(band > 0.0, axis=0))
+        mid = size_px // 2
+        a, b = (int(full[0]), int(full[-1]) + 1) if full.size else (mid, mid)
+        if full.size and full.size != b - a:   # a circle's rows are convex: never taken
+            a = b = mid
+        z0, z1 = (int(some[0]), int(some[-1]) + 1) if some.size else (mid, mid)
+        spans.append((r0, r1, min(z0, a), a, b, max(z1, b)))
     return tuple(spans)
 
 
 def premultiply_circle(rgb: np.ndarray) -> None:
-    """rgb (3, n, n) *= circle_alpha(n), in place, touching only the pixels whose coverage is not 1."""
+    """rgb (3, n, n) *= circle_alpha(n), in place: zeros outside the circle, a product on its rim,
+    nothing where the coverage is 1."""
     n = rgb.shape[-1]
     alpha = circle_alpha(n)
-    for r0, r1, a, b in rim_spans(n):
-        for lo, hi in ((0, a), (b, n)):
+    for r0, r1, z0, a, b, z1 in rim_spans(n):
+        rgb[:, r0:r1, :z0] = 0.0
+        rgb[:, r0:r1, z1:] = 0.0
+        for lo, hi in ((z0, a), (b, z1)):
             if hi > lo:
                 rgb[:, r0:r1, lo:hi] *= alpha[None, r0:r1, lo:hi]
 

@@ -200,3 +200,14 @@ def test_camera_validation():
                    {"tilt_deg": 95.0}, {"view_az_deg": 10.0}, {"size_px": 1024.0}):
         with pytest.raises(DomegenError):
             CameraSpec(**kwargs)
+
+
+@pytest.mark.parametrize("n", [64, 333, 1000, 2048])
+def test_circle_premultiply_touching_the_rim_only_equals_the_full_product(n):
+    # Reference: the plain product with the coverage plane (identity of the premultiply, common practice).
+    from domegen.render.camera import circle_alpha, premultiply_circle
+
+    rgb = np.random.default_rng(n).random((3, n, n), dtype=np.float32) + np.float32(0.5)
+    want = rgb * circle_alpha(n)[None]
+    premultiply_circle(rgb)
+    assert np.array_equal(rgb, want)
