@@ -14,7 +14,7 @@ import time
 from dataclasses import dataclass
 from pathlib import Path
 
-from domegen.cache import atomic_write_bytes
+from domegen.cache import atomic_write_bytes, drop_cached
 
 DEFAULT_PRODUCER = "domegen.farm.worker:render_and_encode"
 
@@ -87,10 +87,31 @@ def run_job(job: FrameJob) -> FrameResult:
     data, timings = data if isinstance(data, tuple) else (data, {})
     path = Path(job.path)
     path.parent.mkdir(parents=True, exist_ok=True)
-    atomic_write_bytes(path, data)
+    _write_frame(path, data)
     digest = hashlib.sha256(data).hexdigest()
     return FrameResult(job.frame, job.file, job.params, digest, len(data), t1 - t0,
                        time.perf_counter() - t0, time.process_time() - c0, timings.get("ephemeris_s", 0.0))
+
+
+#: The frame file this process wrote last, whose cache pages go at the next write.
+_previous_file: list[Path] = []
+
+
+def _write_frame(path: Path, data: bytes) -> None:
+    """Write a frame file atomically and let it leave the page cache.
+
+    No fsync per frame (7 ms, 4 % of a 4K frame here): a resume checks each
+    recorded frame's size and SHA-256, so a frame lost to a power cut is
+    redone.  The new file's writeback starts now; the previous file's pages,
+    written back meanwhile, are dropped, so a sequence reuses a few MB of
+    cache instead of taking fresh memory for every frame (on this VM a
+    fresh page costs ~3 ms per MB, the write 1.2 ms instead of 6-7 ms).
+    """
+    atomic_write_bytes(path, data, durable=False)
+    drop_cached(path)
+    if _previous_file:
+        drop_cached(_previous_file.pop())
+    _previous_file.append(path)
 
 
 def run_chunk(jobs: list) -> list:
