@@ -227,6 +227,18 @@ def circle_alpha(size_px: int) -> np.ndarray:
 
 
 @functools.lru_cache(maxsize=2)
+def circle_row_extent(size_px: int) -> tuple[np.ndarray, np.ndarray]:
+    """Per row, the columns [lo, hi) outside which the image-circle coverage is 0 (int64 arrays)."""
+    alpha = circle_alpha(size_px)
+    some = alpha > 0.0
+    any_ = some.any(axis=1)
+    lo = np.where(any_, np.argmax(some, axis=1), size_px // 2).astype(np.int64)
+    hi = np.where(any_, size_px - np.argmax(some[:, ::-1], axis=1), size_px // 2).astype(np.int64)
+    lo.flags.writeable = hi.flags.writeable = False
+    return lo, hi
+
+
+@functools.lru_cache(maxsize=2)
 def rim_spans(size_px: int, band_rows: int = 64) -> tuple:
     """Where the image-circle coverage is not 1, per band of rows: (r0, r1, z0, a, b, z1) with
     every row of the band fully inside the circle over columns a..b and fully outside it

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import io
 import struct
 import zlib
 
@@ -117,3 +118,33 @@ def test_unknown_format_and_bad_depth():
         encode_frame(f, "png", 12)
     with pytest.raises(ValueError):
         encode_png(np.zeros((2, 4, 4), np.uint8))
+
+
+@pytest.mark.parametrize("bit_depth", [8, 16])
+def test_a_rendered_frame_encodes_to_the_full_tone_map_of_every_pixel(bit_depth):
+    # The PNG writer skips the tone map where the image circle's coverage is 0
+    # (the frame's RGB is premultiplied by it); decoded, the file must equal the
+    # tone map and alpha codes of every pixel, corners included.
+    from datetime import datetime, timezone
+
+    from domegen.render.frame import render_frame
+    from domegen.render.spec import CameraSpec, FrameSpec, LayerSpec
+    from domegen.sky.site import Site
+
+    site = Site(lat_deg=47.2184, lon_deg=-1.5536, elev_m=20.0, name="Loire Valley Science Dome",
+                timezone="Europe/Paris")
+    spec = FrameSpec(site=site, utc=datetime(2026, 8, 12, 19, 30, tzinfo=timezone.utc),
+                     camera=CameraSpec(size_px=200), layers=LayerSpec(stars=0.0))
+    fr = render_frame(spec)
+    assert np.all(fr.rgb[:, 0, 0] == 0.0) and np.all(fr.rgb[:, 100, 100] > 0.0)
+    ev = fr.info["exposure_ev"]
+    want = np.concatenate([tonemap.tone_map(fr.rgb, ev, bit_depth),
+                           tonemap.alpha_codes(fr.alpha, bit_depth)[None]])
+    data = encode_frame(fr, "png", bit_depth)
+    if bit_depth == 16:
+        got = np.moveaxis(_decode_png16(data).astype(np.uint16), -1, 0)
+    else:
+        with Image.open(io.BytesIO(data)) as im:
+            got = np.moveaxis(np.asarray(im), -1, 0)
+    assert got.shape == (4, 200, 200)
+    np.testing.assert_array_equal(got, want)
