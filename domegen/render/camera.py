@@ -244,17 +244,16 @@ def rim_spans(size_px: int, band_rows: int = 64) -> tuple:
     every row of the band fully inside the circle over columns a..b and fully outside it
     (coverage 0) before z0 and from z1 on."""
     alpha = circle_alpha(size_px)
+    lo, hi = circle_row_extent(size_px)
     spans = []
     for r0 in range(0, size_px, band_rows):
         r1 = min(size_px, r0 + band_rows)
-        band = alpha[r0:r1]
-        full = np.flatnonzero(np.all(band == 1.0, axis=0))
-        some = np.flatnonzero(np.any(band > 0.0, axis=0))
+        full = np.flatnonzero(np.all(alpha[r0:r1] == 1.0, axis=0))
         mid = size_px // 2
         a, b = (int(full[0]), int(full[-1]) + 1) if full.size else (mid, mid)
         if full.size and full.size != b - a:   # a circle's rows are convex: never taken
             a = b = mid
-        z0, z1 = (int(some[0]), int(some[-1]) + 1) if some.size else (mid, mid)
+        z0, z1 = int(lo[r0:r1].min()), int(hi[r0:r1].max())
         spans.append((r0, r1, min(z0, a), a, b, max(z1, b)))
     return tuple(spans)
 
