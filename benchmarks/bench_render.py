@@ -6,7 +6,8 @@ layers.  Per size: the direction grid (once per camera), the frame compute
 does, and into a reused buffer), the encode (tone mapping + 8-bit PNG) and
 the floor (the same PNG writer on the already tone-mapped codes).  Times are
 CPU seconds of this process (core-seconds; wall time in brackets).  Peak
-memory is the process's maximum resident set size.
+memory is the process's maximum resident set size.  One math-library thread,
+as the command line runs.
 
     python benchmarks/bench_render.py [--sizes 4096 8192]
 """
@@ -17,11 +18,51 @@ import argparse
 import resource
 from datetime import datetime, timezone
 
+import domegen.cli.main  # noqa: F401  - the command line's process set-up (one math-library thread), before numpy
+
 import numpy as np
 
 from _timing import timed
 
 
+
+
+def _best(fn, repeat: int = 5) -> float:
+    """Best CPU seconds of ``repeat`` calls."""
+    return min(timed(fn)[1] for _ in range(repeat))
+
+
+def kernel_ratios(spec, bodies, stars) -> None:
+    """The compiled kernels against their numpy forms, same frame, same run (best of 5, CPU)."""
+    from domegen.render import kernels, tonemap
+    from domegen.render.camera import circle_row_extent
+    from domegen.render.frame import _lerp_index, coarse_sky, render_frame, sky_light, sky_model_named
+    from domegen.render.output import PNG_BAND_ROWS, _alpha_codes
+
+    f = render_frame(spec, bodies=bodies, stars=stars)
+    n = spec.camera.size_px
+    sky, _ = coarse_sky(spec.camera, sky_model_named(spec.layers.sky_model), sky_light(spec, bodies))
+    m = sky.shape[1]
+    ix, wx = _lerp_index(n, m)
+    iy, wy = _lerp_index(n, m)
+    starts = np.searchsorted(iy, np.arange(m - 1), side="left")
+    ends = np.searchsorted(iy, np.arange(m - 1), side="right")
+    plan = (ix, wx, starts, ends, wy)
+    plane = np.empty((n, n), np.float32)
+    up_np = _best(lambda: [kernels.upsample_plane_numpy(plane, sky[k], *plan) for k in range(3)])
+    up_nb = _best(lambda: [kernels.upsample_plane(plane, sky[k], *plan) for k in range(3)])
+    ev = f.info["exposure_ev"]
+    alpha = _alpha_codes(f.alpha, 8)
+    lo, hi = circle_row_extent(n)
+    rows = np.empty((PNG_BAND_ROWS, 1 + 4 * n), np.uint8)
+    bands = range(0, n - PNG_BAND_ROWS + 1, PNG_BAND_ROWS)
+    scale, table = np.float32(tonemap.exposure_scale(ev)), tonemap.full_lut8()
+    tm_np = _best(lambda: [kernels.png_rows_numpy(f.rgb, r, r + PNG_BAND_ROWS, ev, 8, alpha, rows) for r in bands])
+    tm_nb = _best(lambda: [kernels.png_rows8(f.rgb, r, r + PNG_BAND_ROWS, lo, hi, scale, table, alpha, rows)
+                           for r in bands])
+    print("  compiled kernels vs their numpy forms (CPU s, best of 5; the kernel skips the image corners):")
+    print(f"    sky upsampling           numpy {up_np:6.3f}  kernel {up_nb:6.3f}  ratio {up_np / up_nb:5.2f}")
+    print(f"    tone map into PNG rows   numpy {tm_np:6.3f}  kernel {tm_nb:6.3f}  ratio {tm_np / tm_nb:5.2f}")
 
 
 def main() -> None:
@@ -52,8 +93,8 @@ def main() -> None:
     bodies, c_b, _ = timed(lambda: body_positions(site, np.array([unix_seconds(when)])))
     stars, c_s, _ = timed(lambda: star_field(site, when, mag_limit=layers.star_mag_limit))
     print(f"positions (once per instant): bodies {c_b:.3f} s, {len(stars)} stars {c_s:.3f} s")
-    # warm the sky model's caches on a small frame
-    render_frame(FrameSpec(site, when, CameraSpec(size_px=256), layers), bodies=bodies, stars=stars)
+    # warm the sky model's caches and load (or compile) the kernels on a small frame
+    encode_frame(render_frame(FrameSpec(site, when, CameraSpec(size_px=256), layers), bodies=bodies, stars=stars))
 
     for n in args.sizes:
         camera = CameraSpec(size_px=n)
@@ -76,6 +117,7 @@ def main() -> None:
         print(f"  compute / floor {c_comp / c_floor:5.2f}   encode / floor {c_enc / c_floor:5.2f}   "
               f"frame (compute + encode) {total:.3f} core-s = {total / c_floor:.2f} x floor")
         del codes
+        kernel_ratios(spec, bodies, stars)
         peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 2 ** 20
         print(f"  peak resident memory of render + encode {peak:.2f} GiB")
         # the full direction grid (overlays, eclipse layers) is built once per camera, on first use

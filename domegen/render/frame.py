@@ -211,28 +211,22 @@ def _lerp_index(n: int, m: int):
 
 
 def upsample_into(planes: np.ndarray, coarse: np.ndarray) -> None:
-    """planes (3, n, n) = bilinear upsampling of coarse (3, m, m) (sample centres aligned).
+    """planes (3, n, n) float32 = bilinear upsampling of coarse (3, m, m) (sample centres aligned).
 
-    Rows are filled one coarse cell at a time (rows between two coarse rows
-    share their pair): two passes per pixel, no gathers.
+    A compiled pass (kernels.upsample_plane) writes each pixel once; the
+    rows between two coarse rows share that pair's interpolated rows.
     """
+    from domegen.render import kernels
+
     _, n, _ = planes.shape
     m = coarse.shape[1]
     ix, wx = _lerp_index(n, m)
     iy, wy = _lerp_index(n, m)
     starts = np.searchsorted(iy, np.arange(m - 1), side="left")
     ends = np.searchsorted(iy, np.arange(m - 1), side="right")
+    coarse = np.ascontiguousarray(coarse, dtype=np.float32)
     for k in range(3):
-        # a column gather comes back column-major; its rows would be read with a 1 kB stride below
-        tmp = np.ascontiguousarray(coarse[k][:, ix] * (1 - wx) + coarse[k][:, ix + 1] * wx)   # (m, n)
-        diff = tmp[1:] - tmp[:-1]
-        for i in range(m - 1):  # coarse rows, not pixels
-            r0, r1 = int(starts[i]), int(ends[i])
-            if r0 == r1:
-                continue
-            block = planes[k, r0:r1]
-            np.multiply(wy[r0:r1, None], diff[i][None, :], out=block)
-            block += tmp[i][None, :]
+        kernels.upsample_plane(planes[k], coarse[k], ix, wx, starts, ends, wy)
 
 
 def sky_window(coarse: np.ndarray, n: int, box) -> np.ndarray:

@@ -22,7 +22,7 @@ except ImportError:  # pragma: no cover - isal is a dependency; zlib gives valid
 
 from domegen.cache import atomic_write_bytes
 from domegen.errors import InputError
-from domegen.render import tonemap
+from domegen.render import kernels, tonemap
 from domegen.render.camera import circle_alpha, circle_row_extent
 
 FORMATS = {"png": "png", "jpg": "jpeg", "jpeg": "jpeg", "exr": "exr"}
@@ -49,15 +49,15 @@ PNG_BAND_ROWS = 64
 
 
 def _png_stream(h: int, w: int, c: int, depth: int, fill, level: int) -> bytes:
-    """PNG bytes (filter None); ``fill(pix, r0, r1)`` writes rows r0..r1 into pix (r1-r0, w, c) codes."""
+    """PNG bytes; ``fill(rows, r0, r1)`` writes image rows r0..r1 as scanlines into
+    rows (r1-r0, 1 + w*c*depth/8) uint8: a filter byte (0, None) then the samples."""
     nbytes = depth // 8
     comp = _deflate.compressobj(level)
     parts = []
     for r0 in range(0, h, PNG_BAND_ROWS):
         r1 = min(h, r0 + PNG_BAND_ROWS)
         rows = np.empty((r1 - r0, 1 + w * c * nbytes), dtype=np.uint8)
-        rows[:, 0] = 0
-        fill(rows[:, 1:].view(">u2" if depth == 16 else np.uint8).reshape(r1 - r0, w, c), r0, r1)
+        fill(rows, r0, r1)
         parts.append(comp.compress(rows))
     parts.append(comp.flush())
     color_type = 6 if c == 4 else 2
@@ -78,7 +78,9 @@ def encode_png(planes, level: int = PNG_LEVEL) -> bytes:
     if c not in (3, 4) or dtype not in (np.uint8, np.uint16) or any(p.shape != (h, w) for p in planes):
         raise ValueError("planes must be (3|4, H, W) uint8/uint16")
 
-    def fill(pix, r0, r1):
+    def fill(rows, r0, r1):
+        rows[:, 0] = 0
+        pix = rows[:, 1:].view(">u2" if dtype == np.uint16 else np.uint8).reshape(r1 - r0, w, c)
         for k in range(c):
             pix[:, :, k] = planes[k][r0:r1]
 
@@ -150,13 +152,19 @@ def encode_frame(rendered, fmt: str = "png", bit_depth: int = 8, exposure_ev: fl
               and rendered.alpha is circle_alpha(h)
               else (np.zeros(h, np.int64), np.full(h, w, np.int64)))
 
-    def fill(pix, r0, r1):   # tone map band by band, straight into the PNG rows
-        z0, z1 = int(lo[r0:r1].min()), int(hi[r0:r1].max())
-        pix[:, :z0] = 0
-        pix[:, z1:] = 0
-        for k in range(3):
-            tonemap.tone_map_plane(rendered.rgb[k, r0:r1, z0:z1], ev, bit_depth, out=pix[:, z0:z1, k])
-        pix[:, z0:z1, 3] = alpha[r0:r1, z0:z1]
+    scale = np.float32(tonemap.exposure_scale(ev))
+    rgb = np.ascontiguousarray(rendered.rgb, dtype=np.float32)
+    if bit_depth == 8:
+        table = tonemap.full_lut8()
+
+        def fill(rows, r0, r1):   # tone map band by band, straight into the PNG rows
+            kernels.png_rows8(rgb, r0, r1, lo, hi, scale, table, alpha, rows)
+    else:
+        table, base = tonemap.lut(16)
+        lo_val, hi_val = np.float32(tonemap.LUT_MIN), np.float32(tonemap.LUT_MAX)
+
+        def fill(rows, r0, r1):
+            kernels.png_rows16(rgb, r0, r1, lo, hi, scale, table, base, lo_val, hi_val, alpha, rows)
 
     return _png_stream(h, w, 4, bit_depth, fill, PNG_LEVEL)
 

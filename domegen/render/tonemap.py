@@ -23,8 +23,9 @@ DAY_SKY_CD_M2 = 4000.0
 MID_GREY = 0.18
 #: Display-linear value where the highlight shoulder starts.
 SHOULDER = 0.8
-_LO = 2.0 ** -24
-_HI = 2.0 ** 6
+#: Display-linear range of the 16-bit table (values are clamped to it; the 8-bit table covers every float).
+LUT_MIN = 2.0 ** -24
+LUT_MAX = 2.0 ** 6
 _SHIFT = {8: 15, 16: 8}
 
 
@@ -64,10 +65,11 @@ def shoulder(d):
 
 
 @functools.lru_cache(maxsize=4)
-def _lut(bit_depth: int) -> tuple[np.ndarray, int]:
+def lut(bit_depth: int) -> tuple[np.ndarray, int]:
+    """(codes, base): the code of display-linear v is codes[(bits(v) >> shift) - base], v in [LUT_MIN, LUT_MAX]."""
     shift = _SHIFT[bit_depth]
-    lo = int(np.float32(_LO).view(np.uint32)) >> shift
-    hi = int(np.float32(_HI).view(np.uint32)) >> shift
+    lo = int(np.float32(LUT_MIN).view(np.uint32)) >> shift
+    hi = int(np.float32(LUT_MAX).view(np.uint32)) >> shift
     codes = np.arange(lo, hi + 1, dtype=np.uint64)
     # value at the middle of each bucket of bit patterns
     mid = ((codes << np.uint64(shift)) + np.uint64(1 << (shift - 1))).astype(np.uint32).view(np.float32)
@@ -81,12 +83,12 @@ def _lut(bit_depth: int) -> tuple[np.ndarray, int]:
 
 
 @functools.lru_cache(maxsize=1)
-def _full_lut8() -> np.ndarray:
+def full_lut8() -> np.ndarray:
     """8-bit table over every float32 bit pattern >> 15 (2^17 entries): no clipping pass needed.
 
     Negative values (sign bit set) map to 0, values above the table's top to 255.
     """
-    table, base = _lut(8)
+    table, base = lut(8)
     full = np.zeros(1 << 17, dtype=np.uint8)
     full[base:base + table.size] = table
     full[base + table.size:1 << 16] = 255
@@ -107,11 +109,11 @@ def tone_map_plane(plane: np.ndarray, ev: float, bit_depth: int = 8, out: np.nda
     bits = buf.view(np.uint32)
     if bit_depth == 8:
         np.right_shift(bits, np.uint32(15), out=bits)
-        table = _full_lut8()   # every 17-bit index has an entry: "wrap" never wraps, and skips the bounds pass
+        table = full_lut8()   # every 17-bit index has an entry: "wrap" never wraps, and skips the bounds pass
     else:
-        table, base = _lut(bit_depth)
-        np.maximum(buf, np.float32(_LO), out=buf)
-        np.minimum(buf, np.float32(_HI), out=buf)
+        table, base = lut(bit_depth)
+        np.fmax(buf, np.float32(LUT_MIN), out=buf)   # fmax: NaN -> LUT_MIN, as in kernels.png_rows16
+        np.fmin(buf, np.float32(LUT_MAX), out=buf)
         np.right_shift(bits, np.uint32(_SHIFT[bit_depth]), out=bits)
         np.subtract(bits, np.uint32(base), out=bits)
     if out is None:
