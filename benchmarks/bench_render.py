@@ -27,6 +27,16 @@ from _timing import timed
 
 
 
+def _start_kernels() -> None:
+    from domegen.render import kernels, tonemap
+
+    z = np.zeros((3, 8, 8), np.float32)
+    kernels.upsample_plane(z[0], np.zeros((32, 32), np.float32), np.zeros(8, np.int64), z[0, 0],
+                           np.zeros(31, np.int64), np.zeros(31, np.int64), z[0, 0])
+    kernels.png_rows8(z, 0, 8, np.zeros(8, np.int64), np.full(8, 8, np.int64), np.float32(1.0),
+                      tonemap.full_lut8(), np.zeros((8, 8), np.uint8), np.zeros((8, 33), np.uint8))
+
+
 def _best(fn, repeat: int = 5) -> float:
     """Best CPU seconds of ``repeat`` calls."""
     return min(timed(fn)[1] for _ in range(repeat))
@@ -36,8 +46,9 @@ def kernel_ratios(spec, bodies, stars) -> None:
     """The compiled kernels against their numpy forms, same frame, same run (best of 5, CPU)."""
     from domegen.render import kernels, tonemap
     from domegen.render.camera import circle_row_extent
-    from domegen.render.frame import _lerp_index, coarse_sky, render_frame, sky_light, sky_model_named
-    from domegen.render.output import PNG_BAND_ROWS, _alpha_codes
+    from domegen.render.frame import (_lerp_index, coarse_sky, render_frame, sky_light, sky_model_named,
+                                      upsample_plane_numpy)
+    from domegen.render.output import PNG_BAND_ROWS, _alpha_codes, png_rows_numpy
 
     f = render_frame(spec, bodies=bodies, stars=stars)
     n = spec.camera.size_px
@@ -49,7 +60,7 @@ def kernel_ratios(spec, bodies, stars) -> None:
     ends = np.searchsorted(iy, np.arange(m - 1), side="right")
     plan = (ix, wx, starts, ends, wy)
     plane = np.empty((n, n), np.float32)
-    up_np = _best(lambda: [kernels.upsample_plane_numpy(plane, sky[k], *plan) for k in range(3)])
+    up_np = _best(lambda: [upsample_plane_numpy(plane, sky[k], *plan) for k in range(3)])
     up_nb = _best(lambda: [kernels.upsample_plane(plane, sky[k], *plan) for k in range(3)])
     ev = f.info["exposure_ev"]
     alpha = _alpha_codes(f.alpha, 8)
@@ -57,7 +68,7 @@ def kernel_ratios(spec, bodies, stars) -> None:
     rows = np.empty((PNG_BAND_ROWS, 1 + 4 * n), np.uint8)
     bands = range(0, n - PNG_BAND_ROWS + 1, PNG_BAND_ROWS)
     scale, table = np.float32(tonemap.exposure_scale(ev)), tonemap.full_lut8()
-    tm_np = _best(lambda: [kernels.png_rows_numpy(f.rgb, r, r + PNG_BAND_ROWS, ev, 8, alpha, rows) for r in bands])
+    tm_np = _best(lambda: [png_rows_numpy(f.rgb, r, r + PNG_BAND_ROWS, ev, 8, alpha, rows) for r in bands])
     tm_nb = _best(lambda: [kernels.png_rows8(f.rgb, r, r + PNG_BAND_ROWS, lo, hi, scale, table, alpha, rows)
                            for r in bands])
     print("  compiled kernels vs their numpy forms (CPU s, best of 5; the kernel skips the image corners):")
@@ -78,6 +89,7 @@ def main() -> None:
         return
 
     from domegen.render import camera as cam
+    from domegen.render.compiled import COMPILED_MIN_PIXELS
     from domegen.render import tonemap
     from domegen.render.frame import render_frame
     from domegen.render.output import encode_frame, encode_png
@@ -93,8 +105,11 @@ def main() -> None:
     bodies, c_b, _ = timed(lambda: body_positions(site, np.array([unix_seconds(when)])))
     stars, c_s, _ = timed(lambda: star_field(site, when, mag_limit=layers.star_mag_limit))
     print(f"positions (once per instant): bodies {c_b:.3f} s, {len(stars)} stars {c_s:.3f} s")
-    # warm the sky model's caches and load (or compile) the kernels on a small frame
-    encode_frame(render_frame(FrameSpec(site, when, CameraSpec(size_px=256), layers), bodies=bodies, stars=stars))
+    # warm the sky model's caches on a small frame, and load (or compile) the kernels
+    render_frame(FrameSpec(site, when, CameraSpec(size_px=256), layers), bodies=bodies, stars=stars)
+    _, c_jit, w_jit = timed(_start_kernels)
+    print(f"numba start and kernel load (once per process, frames of {COMPILED_MIN_PIXELS:,} px and up): "
+          f"{c_jit:.3f} s [{w_jit:.3f}]")
 
     for n in args.sizes:
         camera = CameraSpec(size_px=n)

@@ -210,13 +210,27 @@ def _lerp_index(n: int, m: int):
     return i0, w
 
 
+def upsample_plane_numpy(plane, coarse, ix, wx, starts, ends, wy) -> None:
+    """kernels.upsample_plane in numpy: a column gather, then two sweeps per block of rows."""
+    # a column gather comes back column-major; its rows would be read with a 1 kB stride below
+    tmp = np.ascontiguousarray(coarse[:, ix] * (1 - wx) + coarse[:, ix + 1] * wx)   # (m, n)
+    diff = tmp[1:] - tmp[:-1]
+    for i in range(starts.size):   # coarse rows, not pixels
+        r0, r1 = int(starts[i]), int(ends[i])
+        block = plane[r0:r1]
+        np.multiply(wy[r0:r1, None], diff[i][None, :], out=block)
+        block += tmp[i][None, :]
+
+
 def upsample_into(planes: np.ndarray, coarse: np.ndarray) -> None:
     """planes (3, n, n) float32 = bilinear upsampling of coarse (3, m, m) (sample centres aligned).
 
-    A compiled pass (kernels.upsample_plane) writes each pixel once; the
-    rows between two coarse rows share that pair's interpolated rows.
+    The coarse rows are interpolated to full width, and the rows between two
+    coarse rows are filled from that pair; large frames run the compiled
+    pass (kernels.upsample_plane, each pixel written once), small ones the
+    same arithmetic in numpy (see render/compiled.py).
     """
-    from domegen.render import kernels
+    from domegen.render.compiled import use_compiled
 
     _, n, _ = planes.shape
     m = coarse.shape[1]
@@ -225,8 +239,12 @@ def upsample_into(planes: np.ndarray, coarse: np.ndarray) -> None:
     starts = np.searchsorted(iy, np.arange(m - 1), side="left")
     ends = np.searchsorted(iy, np.arange(m - 1), side="right")
     coarse = np.ascontiguousarray(coarse, dtype=np.float32)
+    if use_compiled(n * n):
+        from domegen.render.kernels import upsample_plane
+    else:
+        upsample_plane = upsample_plane_numpy
     for k in range(3):
-        kernels.upsample_plane(planes[k], coarse[k], ix, wx, starts, ends, wy)
+        upsample_plane(planes[k], coarse[k], ix, wx, starts, ends, wy)
 
 
 def sky_window(coarse: np.ndarray, n: int, box) -> np.ndarray:

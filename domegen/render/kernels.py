@@ -7,12 +7,13 @@
 - ``upsample_plane``: the bilinear sky upsampling, each output value
   written once (numpy needed a column gather and two sweeps).
 
-Each kernel computes exactly what the numpy expression it replaces computes
-(IEEE float32 products and sums in the same order; numba's default math
-contracts no multiply-add), so frames keep their bytes; tests compare them
-with the numpy forms.  Indices are unsigned so numba adds no negative-index
-wrap.  Compiled on first use and cached beside this module (numba
-``cache=True``), so later processes load them in a few milliseconds.
+Each kernel computes exactly what its numpy form (frame.upsample_plane_numpy,
+output.png_rows_numpy) computes: IEEE float32 products and sums in the same
+order, and numba's default math contracts no multiply-add; tests compare the
+two bit for bit, so a frame's bytes do not depend on which ran (see
+render/compiled.py for when each runs).  Indices are unsigned so numba adds
+no negative-index wrap.  Compiled on first use and cached beside this module
+(numba ``cache=True``), so later processes load them in milliseconds.
 """
 
 from __future__ import annotations
@@ -121,27 +122,3 @@ def upsample_plane(plane, coarse, ix, wx, starts, ends, wy):
             for x in range(np.uint64(n)):
                 out[x] = f * d[x] + t0[x]
 
-
-# The numpy forms of the same passes: the reference the tests compare the
-# kernels with bit for bit, and the baseline of benchmarks/bench_render.py.
-
-def upsample_plane_numpy(plane, coarse, ix, wx, starts, ends, wy) -> None:
-    """upsample_plane in numpy (a column gather, then two sweeps per row block)."""
-    tmp = np.ascontiguousarray(coarse[:, ix] * (1 - wx) + coarse[:, ix + 1] * wx)
-    diff = tmp[1:] - tmp[:-1]
-    for i in range(starts.size):
-        r0, r1 = int(starts[i]), int(ends[i])
-        block = plane[r0:r1]
-        np.multiply(wy[r0:r1, None], diff[i][None, :], out=block)
-        block += tmp[i][None, :]
-
-
-def png_rows_numpy(rgb, r0, r1, ev: float, bit_depth: int, alpha, rows) -> None:
-    """png_rows8/16 in numpy over whole rows: tonemap.tone_map_plane per channel, then interleave."""
-    from domegen.render import tonemap
-
-    rows[:, 0] = 0
-    pix = rows[:, 1:].view(">u2" if bit_depth == 16 else np.uint8).reshape(r1 - r0, rgb.shape[2], 4)
-    for k in range(3):
-        tonemap.tone_map_plane(rgb[k, r0:r1], ev, bit_depth, out=pix[:, :, k])
-    pix[:, :, 3] = alpha[r0:r1]

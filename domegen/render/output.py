@@ -22,8 +22,9 @@ except ImportError:  # pragma: no cover - isal is a dependency; zlib gives valid
 
 from domegen.cache import atomic_write_bytes
 from domegen.errors import InputError
-from domegen.render import kernels, tonemap
+from domegen.render import tonemap
 from domegen.render.camera import circle_alpha, circle_row_extent
+from domegen.render.compiled import use_compiled
 
 FORMATS = {"png": "png", "jpg": "jpeg", "jpeg": "jpeg", "exr": "exr"}
 #: Deflate level of PNG output (ISA-L levels 0-3): 1 is as small as zlib's level 1 at a quarter of its time.
@@ -147,26 +148,44 @@ def encode_frame(rendered, fmt: str = "png", bit_depth: int = 8, exposure_ev: fl
     _, h, w = rendered.rgb.shape
     alpha = _alpha_codes(rendered.alpha, bit_depth)
     # A rendered frame's RGB is premultiplied by its image circle: where that
-    # coverage is 0 every code is 0, so the corners (22 %) skip the tone map.
+    # coverage is 0 every code is 0, so the compiled pass skips the corners (22 %).
     lo, hi = (circle_row_extent(h) if h == w and not rendered.alpha.flags.writeable
               and rendered.alpha is circle_alpha(h)
               else (np.zeros(h, np.int64), np.full(h, w, np.int64)))
 
-    scale = np.float32(tonemap.exposure_scale(ev))
     rgb = np.ascontiguousarray(rendered.rgb, dtype=np.float32)
-    if bit_depth == 8:
-        table = tonemap.full_lut8()
+    if not use_compiled(h * w):
+        def fill(rows, r0, r1):
+            png_rows_numpy(rgb, r0, r1, ev, bit_depth, alpha, rows)
+    elif bit_depth == 8:
+        from domegen.render.kernels import png_rows8
+
+        scale, table = np.float32(tonemap.exposure_scale(ev)), tonemap.full_lut8()
 
         def fill(rows, r0, r1):   # tone map band by band, straight into the PNG rows
-            kernels.png_rows8(rgb, r0, r1, lo, hi, scale, table, alpha, rows)
+            png_rows8(rgb, r0, r1, lo, hi, scale, table, alpha, rows)
     else:
-        table, base = tonemap.lut(16)
+        from domegen.render.kernels import png_rows16
+
+        scale, (table, base) = np.float32(tonemap.exposure_scale(ev)), tonemap.lut(16)
         lo_val, hi_val = np.float32(tonemap.LUT_MIN), np.float32(tonemap.LUT_MAX)
 
         def fill(rows, r0, r1):
-            kernels.png_rows16(rgb, r0, r1, lo, hi, scale, table, base, lo_val, hi_val, alpha, rows)
+            png_rows16(rgb, r0, r1, lo, hi, scale, table, base, lo_val, hi_val, alpha, rows)
 
     return _png_stream(h, w, 4, bit_depth, fill, PNG_LEVEL)
+
+
+def png_rows_numpy(rgb, r0, r1, ev: float, bit_depth: int, alpha, rows) -> None:
+    """kernels.png_rows8/16 in numpy over whole rows: tone_map_plane per channel, then interleave.
+
+    rgb (3, H, W) float32 cd/m^2, alpha (H, W) codes, rows (r1-r0, 1 + 4 W depth/8) uint8.
+    """
+    rows[:, 0] = 0
+    pix = rows[:, 1:].view(">u2" if bit_depth == 16 else np.uint8).reshape(r1 - r0, rgb.shape[2], 4)
+    for k in range(3):
+        tonemap.tone_map_plane(rgb[k, r0:r1], ev, bit_depth, out=pix[:, :, k])
+    pix[:, :, 3] = alpha[r0:r1]
 
 
 _ALPHA_MEMO: dict = {}

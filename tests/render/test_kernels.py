@@ -6,7 +6,8 @@ import numpy as np
 import pytest
 
 from domegen.render import kernels, tonemap
-from domegen.render.frame import _lerp_index, coarse_size, sky_window, upsample_into
+from domegen.render.frame import _lerp_index, coarse_size, sky_window, upsample_into, upsample_plane_numpy
+from domegen.render.output import png_rows_numpy
 
 
 def _plan(n: int, m: int):
@@ -17,8 +18,14 @@ def _plan(n: int, m: int):
     return ix, wx, starts, ends, wy
 
 
+@pytest.fixture
+def compiled_always(monkeypatch):
+    """Every frame size takes the compiled passes."""
+    monkeypatch.setattr("domegen.render.compiled.COMPILED_MIN_PIXELS", 0)
+
+
 @pytest.mark.parametrize("n", [7, 100, 1000, 1030])
-def test_upsampling_kernel_equals_the_numpy_form_bit_for_bit(n):
+def test_upsampling_kernel_equals_the_numpy_form_bit_for_bit(n, compiled_always):
     m = coarse_size(n)
     rng = np.random.default_rng(n)
     # radiances over many octaves, as a twilight or eclipse sky has (cd/m^2)
@@ -27,7 +34,7 @@ def test_upsampling_kernel_equals_the_numpy_form_bit_for_bit(n):
     upsample_into(got, coarse)
     want = np.full((3, n, n), np.nan, np.float32)
     for k in range(3):
-        kernels.upsample_plane_numpy(want[k], coarse[k], *_plan(n, m))
+        upsample_plane_numpy(want[k], coarse[k], *_plan(n, m))
     assert not np.isnan(got).any()
     assert np.array_equal(got.view(np.uint32), want.view(np.uint32))
     # and the window form the layers read the sky with
@@ -67,7 +74,7 @@ def test_png_row_kernel_equals_the_tone_map_of_every_pixel(bit_depth, ev):
                            np.float32(tonemap.LUT_MAX), alpha, got)
     want = np.empty_like(got)
     with np.errstate(invalid="ignore", over="ignore"):   # NaN and 3.4e38 x 2^7.3 on purpose
-        kernels.png_rows_numpy(rgb, 0, h, ev, bit_depth, alpha, want)
+        png_rows_numpy(rgb, 0, h, ev, bit_depth, alpha, want)
     pix = want[:, 1:].reshape(h, w, 4 * nbytes)
     for r in range(h):   # outside [lo, hi) the kernel writes 0 (there the frame's coverage is 0)
         pix[r, :lo[r]] = 0
@@ -79,3 +86,24 @@ def test_png_row_kernel_equals_the_tone_map_of_every_pixel(bit_depth, ev):
 def test_tone_map_clamps_nan_to_black_at_16_bits():
     plane = np.array([[np.nan, -np.nan, 1.0]], np.float32)
     assert list(tonemap.tone_map_plane(plane, 0.0, 16)[0, :2]) == [0, 0]
+
+
+def test_small_frames_never_start_numba():
+    # numba's start costs a process ~0.6 s, more than a small frame saves: previews and drafts skip it
+    import subprocess
+    import sys
+
+    code = ("import sys\n"
+            "from datetime import datetime, timezone\n"
+            "from domegen.render.frame import render_frame\n"
+            "from domegen.render.output import encode_frame\n"
+            "from domegen.render.spec import CameraSpec, FrameSpec, LayerSpec\n"
+            "from domegen.sky.site import Site\n"
+            "site = Site(lat_deg=47.2184, lon_deg=-1.5536, elev_m=20.0, timezone='Europe/Paris')\n"
+            "spec = FrameSpec(site=site, utc=datetime(2026, 8, 12, 21, 30, tzinfo=timezone.utc),\n"
+            "                 camera=CameraSpec(size_px=256), layers=LayerSpec())\n"
+            "assert len(encode_frame(render_frame(spec), 'png', 8)) > 1000\n"
+            "print('numba' in sys.modules)\n")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
+    assert out.returncode == 0, out.stderr
+    assert out.stdout.strip() == "False"

@@ -120,11 +120,13 @@ def test_unknown_format_and_bad_depth():
         encode_png(np.zeros((2, 4, 4), np.uint8))
 
 
+@pytest.mark.parametrize("compiled", [False, True])
 @pytest.mark.parametrize("bit_depth", [8, 16])
-def test_a_rendered_frame_encodes_to_the_full_tone_map_of_every_pixel(bit_depth):
-    # The PNG writer skips the tone map where the image circle's coverage is 0
-    # (the frame's RGB is premultiplied by it); decoded, the file must equal the
-    # tone map and alpha codes of every pixel, corners included.
+def test_a_rendered_frame_encodes_to_the_full_tone_map_of_every_pixel(bit_depth, compiled, monkeypatch):
+    # The compiled PNG pass skips the tone map where the image circle's coverage
+    # is 0 (the frame's RGB is premultiplied by it); decoded, the file must equal
+    # the tone map and alpha codes of every pixel, corners included, in both forms.
+    monkeypatch.setattr("domegen.render.compiled.COMPILED_MIN_PIXELS", 0 if compiled else 1 << 62)
     from datetime import datetime, timezone
 
     from domegen.render.frame import render_frame
