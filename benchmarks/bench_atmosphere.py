@@ -7,6 +7,8 @@ Run: python benchmarks/bench_atmosphere.py [--examples]   (--examples also rende
 from __future__ import annotations
 
 import argparse
+
+import domegen.cli.main  # noqa: F401  - the command line's process set-up (one math-library thread), before numpy
 import os
 import tempfile
 import time

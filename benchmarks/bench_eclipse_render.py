@@ -21,6 +21,8 @@ from __future__ import annotations
 
 import argparse
 
+import domegen.cli.main  # noqa: F401  - the command line's process set-up (one math-library thread), before numpy
+
 import numpy as np
 
 from _timing import timed
