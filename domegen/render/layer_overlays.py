@@ -16,7 +16,7 @@ import math
 
 import numpy as np
 
-from domegen.render.text import draw_text, upright_angle
+from domegen.render.text import draw_text, outline, text_mask, upright_angle
 from domegen.render.tonemap import srgb_decode
 
 #: Our palette (sRGB display values 0..1).
@@ -169,19 +169,66 @@ def _text_px(ctx, size_deg: float, frac_max: float = 0.012) -> int:
     return int(max(10, min(size_deg / ctx.deg_per_px, frac_max * ctx.size)))
 
 
-def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0, keep_inside: bool = True) -> None:
+#: Gap (px) kept between the dark rims of two labels.
+LABEL_GAP_PX = 2
+
+
+@functools.lru_cache(maxsize=512)
+def _ink(text: str, size_px: int, angle_deg: float) -> np.ndarray:
+    """(h, w) bool: the pixels of a label and its dark rim, grown by LABEL_GAP_PX (draw_text's mask grid)."""
+    m = outline(text_mask(text, size_px, angle_deg))
+    for _ in range(LABEL_GAP_PX):
+        m = outline(m)
+    return m > 0.02
+
+
+def _clash(a, b) -> bool:
+    """True if placed labels a and b, each (x0, y0, ink), share a pixel."""
+    (ax, ay, am), (bx, by, bm) = a, b
+    x0, y0 = max(ax, bx), max(ay, by)
+    x1, y1 = min(ax + am.shape[1], bx + bm.shape[1]), min(ay + am.shape[0], by + bm.shape[0])
+    if x0 >= x1 or y0 >= y1:
+        return False
+    return bool(np.any(am[y0 - ay:y1 - ay, x0 - ax:x1 - ax] & bm[y0 - by:y1 - by, x0 - bx:x1 - bx]))
+
+
+def _place(ctx, enu, text, size_px, colour, opacity, offset_px=0.0, keep_inside: bool = True,
+           taken: list | None = None, radius_px: float = 0.0) -> bool:
+    """Draw ``text`` offset_px below (rim-ward of) the direction ``enu``; True if drawn.
+
+    With ``taken`` (the labels drawn so far, as (text, x0, y0, ink, angle_deg,
+    size_px); extended by this one), the label goes to the first of: below,
+    above, right, left (clear of a disk of ``radius_px``), further below,
+    further above, whose pixels miss every taken label's; if none does, it is
+    left out rather than drawn over another.
+    """
     x, y, theta = ctx.project(np.asarray(enu, dtype=float))
     margin = -(offset_px + 2.5 * size_px) * ctx.rad_per_px if keep_inside else 0.0
     if not ctx.in_circle(theta, margin):
-        return
+        return False
     x, y = float(x), float(y)
     if ctx.camera.free_view:
         ang, ux, uy = 0.0, 0.0, -1.0
     else:
         ang = upright_angle(x, y, ctx.size)
         ux, uy = -math.sin(math.radians(ang)), -math.cos(math.radians(ang))
-    draw_text(ctx.rgb, text, x - ux * offset_px, y - uy * offset_px, size_px, ang, colour, opacity,
-              alpha=ctx.overlay_alpha)
+    spots = [(x - ux * offset_px, y - uy * offset_px)]
+    if taken is not None:
+        side = radius_px + text_mask(text, int(size_px), 0.0).shape[1] / 2 + 4
+        far = offset_px + 1.6 * size_px
+        spots += [(x + ux * offset_px, y + uy * offset_px), (x - uy * side, y + ux * side),
+                  (x + uy * side, y - ux * side), (x - ux * far, y - uy * far), (x + ux * far, y + uy * far)]
+        ink = _ink(text, int(size_px), round(float(ang), 1))
+    for cx, cy in spots:
+        if taken is not None:
+            h, w = ink.shape
+            here = (int(round(cx - w / 2)), int(round(cy - h / 2)), ink)   # where draw_text puts it
+            if any(_clash(here, t[1:4]) for t in taken):
+                continue
+            taken.append((text, *here, round(float(ang), 1), int(size_px)))
+        draw_text(ctx.rgb, text, cx, cy, size_px, ang, colour, opacity, alpha=ctx.overlay_alpha)
+        return True
+    return False
 
 
 def _cardinals(ctx, opacity: float) -> None:
@@ -216,11 +263,16 @@ def _labels(ctx, opacity: float) -> None:
         return all(math.hypot(float(x) - cx, float(y) - cy) > r for cx, cy, r in keep_off)
 
     b = ctx.bodies
-    for entry in ctx.info.get("bodies", []):
+    taken: list = []
+    # the Sun and the Moon pick their spots first, then the planets, then the stars by brightness
+    order = sorted(ctx.info.get("bodies", []), key=lambda e: e["name"] not in ("Sun", "Moon"))
+    for entry in order:
         i = b.index(entry["name"])
         r_px = math.radians(float(b.angular_radius_deg[i, 0])) / ctx.rad_per_px
         if clear(b.enu_refracted[i, :, 0]):
-            _place(ctx, b.enu_refracted[i, :, 0], entry["name"], size, col, opacity, offset_px=r_px + 0.9 * size + 3)
+            _place(ctx, b.enu_refracted[i, :, 0], entry["name"], size, col, opacity,
+                   offset_px=r_px + 0.9 * size + 3, taken=taken, radius_px=r_px)
+    _record_labels(ctx, taken)
     sf = ctx.stars
     if sf is None or ctx.light.sun_alt_deg > STAR_LABEL_MAX_SUN_ALT_DEG:
         return   # no star names on a sky too bright to show the stars
@@ -228,4 +280,12 @@ def _labels(ctx, opacity: float) -> None:
     for j in bright:  # a few dozen names at most
         name = STAR_NAMES.get(int(sf.hip[j]))
         if name and clear(sf.enu[:, j]):
-            _place(ctx, sf.enu[:, j], name, size, col, opacity, offset_px=0.9 * size + 4)
+            _place(ctx, sf.enu[:, j], name, size, col, opacity, offset_px=0.9 * size + 4, taken=taken,
+                   radius_px=2.0)
+    _record_labels(ctx, taken)
+
+
+def _record_labels(ctx, taken) -> None:
+    """ctx.info["labels"]: each label drawn, as text, top-left pixel, angle (deg) and size (px)."""
+    ctx.info["labels"] = [{"text": t, "x0_px": x0, "y0_px": y0, "angle_deg": a, "size_px": s}
+                          for t, x0, y0, _, a, s in taken]

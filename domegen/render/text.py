@@ -45,7 +45,7 @@ def draw_text(planes: np.ndarray, text: str, x_px: float, y_px: float, size_px: 
     if xs0 >= xs1 or ys0 >= ys1:
         return
     m = mask[ys0 - y0:ys1 - y0, xs0 - x0:xs1 - x0] * np.float32(opacity)
-    halo = _outline(mask)[ys0 - y0:ys1 - y0, xs0 - x0:xs1 - x0] * np.float32(opacity * OUTLINE_OPACITY)
+    halo = outline(mask)[ys0 - y0:ys1 - y0, xs0 - x0:xs1 - x0] * np.float32(opacity * OUTLINE_OPACITY)
     for k in range(3):   # a dark rim first, so light text reads on a bright sky too
         win = planes[k, ys0:ys1, xs0:xs1]
         win *= 1.0 - halo
@@ -62,7 +62,7 @@ def draw_text(planes: np.ndarray, text: str, x_px: float, y_px: float, size_px: 
 OUTLINE_OPACITY = 0.55
 
 
-def _outline(mask: np.ndarray) -> np.ndarray:
+def outline(mask: np.ndarray) -> np.ndarray:
     """The mask dilated by one pixel (max of the 8 neighbours)."""
     p = np.pad(mask, 1)
     h, w = mask.shape
