@@ -147,17 +147,18 @@ def encode_frame(rendered, fmt: str = "png", bit_depth: int = 8, exposure_ev: fl
         return encode_jpeg(np.stack([tonemap.tone_map_plane(rendered.rgb[k], ev, 8) for k in range(3)]))
     _, h, w = rendered.rgb.shape
     alpha = _alpha_codes(rendered.alpha, bit_depth)
+    rgb = np.ascontiguousarray(rendered.rgb, dtype=np.float32)
+    if not use_compiled(h * w):
+        def fill(rows, r0, r1):
+            png_rows_numpy(rgb, r0, r1, ev, bit_depth, alpha, rows)
+
+        return _png_stream(h, w, 4, bit_depth, fill, PNG_LEVEL)
     # A rendered frame's RGB is premultiplied by its image circle: where that
     # coverage is 0 every code is 0, so the compiled pass skips the corners (22 %).
     lo, hi = (circle_row_extent(h) if h == w and not rendered.alpha.flags.writeable
               and rendered.alpha is circle_alpha(h)
               else (np.zeros(h, np.int64), np.full(h, w, np.int64)))
-
-    rgb = np.ascontiguousarray(rendered.rgb, dtype=np.float32)
-    if not use_compiled(h * w):
-        def fill(rows, r0, r1):
-            png_rows_numpy(rgb, r0, r1, ev, bit_depth, alpha, rows)
-    elif bit_depth == 8:
+    if bit_depth == 8:
         from domegen.render.kernels import png_rows8
 
         scale, table = np.float32(tonemap.exposure_scale(ev)), tonemap.full_lut8()
