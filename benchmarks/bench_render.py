@@ -46,19 +46,14 @@ def kernel_ratios(spec, bodies, stars) -> None:
     """The compiled kernels against their numpy forms, same frame, same run (best of 5, CPU)."""
     from domegen.render import kernels, tonemap
     from domegen.render.camera import circle_row_extent
-    from domegen.render.frame import (_lerp_index, coarse_sky, render_frame, sky_light, sky_model_named,
+    from domegen.render.frame import (coarse_sky, render_frame, sky_light, sky_model_named, upsample_plan,
                                       upsample_plane_numpy)
     from domegen.render.output import PNG_BAND_ROWS, _alpha_codes, png_rows_numpy
 
     f = render_frame(spec, bodies=bodies, stars=stars)
     n = spec.camera.size_px
     sky, _ = coarse_sky(spec.camera, sky_model_named(spec.layers.sky_model), sky_light(spec, bodies))
-    m = sky.shape[1]
-    ix, wx = _lerp_index(n, m)
-    iy, wy = _lerp_index(n, m)
-    starts = np.searchsorted(iy, np.arange(m - 1), side="left")
-    ends = np.searchsorted(iy, np.arange(m - 1), side="right")
-    plan = (ix, wx, starts, ends, wy)
+    plan = upsample_plan(n, sky.shape[1])
     plane = np.empty((n, n), np.float32)
     up_np = _best(lambda: [upsample_plane_numpy(plane, sky[k], *plan) for k in range(3)])
     up_nb = _best(lambda: [kernels.upsample_plane(plane, sky[k], *plan) for k in range(3)])

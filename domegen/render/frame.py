@@ -210,6 +210,24 @@ def _lerp_index(n: int, m: int):
     return i0, w
 
 
+@functools.lru_cache(maxsize=4)
+def upsample_plan(n: int, m: int) -> tuple:
+    """(ix, wx, starts, ends, wy) for upsampling m x m to n x n, shared by a sequence's frames.
+
+    ix (n,) int64 and wx (n,) float32: each column's left coarse sample and
+    weight; wy (n,) float32 the rows' weights; the rows [starts[i], ends[i])
+    lie between coarse rows i and i + 1.
+    """
+    ix, wx = _lerp_index(n, m)
+    iy, wy = _lerp_index(n, m)
+    starts = np.searchsorted(iy, np.arange(m - 1), side="left")
+    ends = np.searchsorted(iy, np.arange(m - 1), side="right")
+    plan = (ix, wx, starts, ends, wy)
+    for a in plan:
+        a.flags.writeable = False
+    return plan
+
+
 def upsample_plane_numpy(plane, coarse, ix, wx, starts, ends, wy) -> None:
     """kernels.upsample_plane in numpy: a column gather, then two sweeps per block of rows."""
     # a column gather comes back column-major; its rows would be read with a 1 kB stride below
@@ -233,18 +251,14 @@ def upsample_into(planes: np.ndarray, coarse: np.ndarray) -> None:
     from domegen.render.compiled import use_compiled
 
     _, n, _ = planes.shape
-    m = coarse.shape[1]
-    ix, wx = _lerp_index(n, m)
-    iy, wy = _lerp_index(n, m)
-    starts = np.searchsorted(iy, np.arange(m - 1), side="left")
-    ends = np.searchsorted(iy, np.arange(m - 1), side="right")
+    plan = upsample_plan(n, coarse.shape[1])
     coarse = np.ascontiguousarray(coarse, dtype=np.float32)
     if use_compiled(n * n):
         from domegen.render.kernels import upsample_plane
     else:
         upsample_plane = upsample_plane_numpy
     for k in range(3):
-        upsample_plane(planes[k], coarse[k], ix, wx, starts, ends, wy)
+        upsample_plane(planes[k], coarse[k], *plan)
 
 
 def sky_window(coarse: np.ndarray, n: int, box) -> np.ndarray:

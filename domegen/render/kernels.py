@@ -48,8 +48,9 @@ def png_rows8(rgb, r0, r1, lo, hi, scale, table, alpha, rows):
     sh = np.uint32(15)
     for r in range(r0, r1):
         row = rows[r - r0]
-        row[:] = 0
         a, b = np.uint64(lo[r]), np.uint64(hi[r])
+        row[:1 + 4 * a] = 0
+        row[1 + 4 * b:] = 0
         _exposed(rgb, r, a, b, scale, buf)
         al = alpha[r]
         for x in range(a, b):
@@ -72,8 +73,9 @@ def png_rows16(rgb, r0, r1, lo, hi, scale, table, base, lo_val, hi_val, alpha, r
     ubase = np.uint32(base)
     for r in range(r0, r1):
         row = rows[r - r0]
-        row[:] = 0
         a, b = np.uint64(lo[r]), np.uint64(hi[r])
+        row[:1 + 8 * a] = 0
+        row[1 + 8 * b:] = 0
         _exposed(rgb, r, a, b, scale, buf)
         for k in range(3):
             dst = buf[k]

@@ -6,16 +6,8 @@ import numpy as np
 import pytest
 
 from domegen.render import kernels, tonemap
-from domegen.render.frame import _lerp_index, coarse_size, sky_window, upsample_into, upsample_plane_numpy
+from domegen.render.frame import coarse_size, sky_window, upsample_into, upsample_plan, upsample_plane_numpy
 from domegen.render.output import png_rows_numpy
-
-
-def _plan(n: int, m: int):
-    ix, wx = _lerp_index(n, m)
-    iy, wy = _lerp_index(n, m)
-    starts = np.searchsorted(iy, np.arange(m - 1), side="left")
-    ends = np.searchsorted(iy, np.arange(m - 1), side="right")
-    return ix, wx, starts, ends, wy
 
 
 @pytest.fixture
@@ -34,7 +26,7 @@ def test_upsampling_kernel_equals_the_numpy_form_bit_for_bit(n, compiled_always)
     upsample_into(got, coarse)
     want = np.full((3, n, n), np.nan, np.float32)
     for k in range(3):
-        upsample_plane_numpy(want[k], coarse[k], *_plan(n, m))
+        upsample_plane_numpy(want[k], coarse[k], *upsample_plan(n, m))
     assert not np.isnan(got).any()
     assert np.array_equal(got.view(np.uint32), want.view(np.uint32))
     # and the window form the layers read the sky with
