@@ -272,20 +272,14 @@ def _labels(ctx, opacity: float) -> None:
         if clear(b.enu_refracted[i, :, 0]):
             _place(ctx, b.enu_refracted[i, :, 0], entry["name"], size, col, opacity,
                    offset_px=r_px + 0.9 * size + 3, taken=taken, radius_px=r_px)
-    _record_labels(ctx, taken)
     sf = ctx.stars
-    if sf is None or ctx.light.sun_alt_deg > STAR_LABEL_MAX_SUN_ALT_DEG:
-        return   # no star names on a sky too bright to show the stars
-    bright = np.flatnonzero((sf.vmag < LABEL_MAG_LIMIT) & (sf.alt_deg > 0))
-    for j in bright:  # a few dozen names at most
-        name = STAR_NAMES.get(int(sf.hip[j]))
-        if name and clear(sf.enu[:, j]):
-            _place(ctx, sf.enu[:, j], name, size, col, opacity, offset_px=0.9 * size + 4, taken=taken,
-                   radius_px=2.0)
-    _record_labels(ctx, taken)
-
-
-def _record_labels(ctx, taken) -> None:
-    """ctx.info["labels"]: each label drawn, as text, top-left pixel, angle (deg) and size (px)."""
+    if sf is not None and ctx.light.sun_alt_deg <= STAR_LABEL_MAX_SUN_ALT_DEG:   # no star names by day
+        bright = np.flatnonzero((sf.vmag < LABEL_MAG_LIMIT) & (sf.alt_deg > 0))
+        for j in bright:  # a few dozen names at most
+            name = STAR_NAMES.get(int(sf.hip[j]))
+            if name and clear(sf.enu[:, j]):
+                _place(ctx, sf.enu[:, j], name, size, col, opacity, offset_px=0.9 * size + 4, taken=taken,
+                       radius_px=2.0)
+    # each label drawn: text, top-left pixel, angle (deg) and size (px)
     ctx.info["labels"] = [{"text": t, "x0_px": x0, "y0_px": y0, "angle_deg": a, "size_px": s}
                           for t, x0, y0, _, a, s in taken]
